@@ -1,0 +1,171 @@
+package eigencov.http;
+
+import com.fasterxml.jackson.core.JsonFactory;
+import com.fasterxml.jackson.core.JsonProcessingException;
+import com.fasterxml.jackson.core.StreamReadFeature;
+import com.fasterxml.jackson.core.StreamWriteFeature;
+import com.fasterxml.jackson.databind.DeserializationFeature;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.SerializationFeature;
+import com.fasterxml.jackson.databind.json.JsonMapper;
+import com.fasterxml.jackson.datatype.jsr310.JavaTimeModule;
+import io.javalin.Javalin;
+import io.javalin.http.Context;
+import io.javalin.http.HttpResponseException;
+import io.javalin.json.JavalinJackson;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+import java.util.List;
+import java.util.Map;
+import java.util.UUID;
+import java.util.function.BooleanSupplier;
+
+/**
+ * Builds the Javalin server: JSON mapping, problem+json error mapping, request ids and request
+ * logging, and the operations endpoints; every other endpoint comes from a {@link RouteModule}.
+ */
+public final class HttpApi {
+    private static final Logger LOG = LoggerFactory.getLogger("eigencov.http");
+    public static final String REQUEST_ID = "X-Request-Id";
+
+    private HttpApi() {
+    }
+
+    /** The one ObjectMapper of the process: strict on input, fast double writer on output. */
+    public static ObjectMapper objectMapper() {
+        JsonFactory factory = JsonFactory.builder()
+                .enable(StreamWriteFeature.USE_FAST_DOUBLE_WRITER)
+                .enable(StreamReadFeature.USE_FAST_DOUBLE_PARSER)
+                .build();
+        return JsonMapper.builder(factory)
+                .addModule(new JavaTimeModule())
+                .disable(SerializationFeature.WRITE_DATES_AS_TIMESTAMPS)
+                .enable(DeserializationFeature.FAIL_ON_UNKNOWN_PROPERTIES)
+                .enable(DeserializationFeature.FAIL_ON_NULL_FOR_PRIMITIVES)
+                .enable(DeserializationFeature.FAIL_ON_TRAILING_TOKENS)
+                .build();
+    }
+
+    /**
+     * @param host         interface to bind
+     * @param port         port (0 = any free)
+     * @param maxBodyBytes largest request body read into memory by Javalin
+     * @param stopGraceMs  how long a stop lets in-flight requests finish
+     * @param ready        store reachability for /ready
+     * @param modules      the endpoint groups
+     */
+    public static Javalin create(String host, int port, long maxBodyBytes, long stopGraceMs, ObjectMapper mapper,
+                                 BooleanSupplier ready, List<RouteModule> modules) {
+        return Javalin.create(config -> {
+            config.startup.showJavalinBanner = false;
+            config.startup.showOldJavalinVersionWarning = false;
+            config.jetty.host = host;
+            config.jetty.port = port;
+            config.jetty.modifyServer(server -> server.setStopTimeout(stopGraceMs));
+            config.http.maxRequestSize = maxBodyBytes;
+            config.http.defaultContentType = "application/json";
+            config.jsonMapper(new JavalinJackson(mapper, false));
+            config.requestLogger.http((ctx, ms) -> LOG.info("{} {} {} {} {}ms", ctx.attribute("requestId"), ctx.method(),
+                    ctx.path(), ctx.statusCode(), Math.round(ms)));
+
+            config.routes.before(ctx -> {
+                String id = ctx.header(REQUEST_ID);
+                if (id == null || id.isBlank() || id.length() > 100 || !id.matches("[A-Za-z0-9._:-]+")) id = UUID.randomUUID().toString();
+                ctx.attribute("requestId", id);
+                ctx.header(REQUEST_ID, id);
+            });
+
+            config.routes.get("/health", ctx -> ctx.json(Map.of("status", "up")));
+            config.routes.get("/ready", ctx -> {
+                if (ready.getAsBoolean()) {
+                    ctx.json(Map.of("status", "ready"));
+                } else {
+                    throw new ApiException(503, "not-ready", "Not ready", "the store is not reachable", List.of());
+                }
+            });
+            for (RouteModule m : modules) m.register(config.routes);
+
+            config.routes.exception(ApiException.class, (e, ctx) -> problem(ctx, e));
+            config.routes.exception(JsonProcessingException.class, (e, ctx) -> problem(ctx,
+                    ApiException.badRequest("request body is not valid JSON for this endpoint: " + e.getOriginalMessage(),
+                            List.of(FieldError.field(jsonPath(e), e.getOriginalMessage())))));
+            config.routes.exception(HttpResponseException.class, (e, ctx) -> problem(ctx,
+                    new ApiException(e.getStatus() >= 400 ? e.getStatus() : 500, slug(e.getStatus()), titleOf(e.getStatus()),
+                            e.getMessage(), List.of())));
+            config.routes.exception(Exception.class, (e, ctx) -> {
+                LOG.error("request {} {} {} failed", ctx.attribute("requestId"), ctx.method(), ctx.path(), e);
+                problem(ctx, new ApiException(500, "internal", "Internal error",
+                        "the server could not complete the request; quote request id " + ctx.attribute("requestId"), List.of()));
+            });
+            config.routes.error(404, ctx -> {
+                if (!isProblem(ctx)) problem(ctx, new ApiException(404, "not-found", "Not found", "no endpoint " + ctx.method() + " " + ctx.path(), List.of()));
+            });
+            config.routes.error(405, ctx -> {
+                if (!isProblem(ctx)) problem(ctx, new ApiException(405, "method-not-allowed", "Method not allowed", ctx.method() + " is not allowed on " + ctx.path(), List.of()));
+            });
+        });
+    }
+
+    private static boolean isProblem(Context ctx) {
+        String ct = ctx.res().getContentType();
+        return ct != null && ct.startsWith(Problem.CONTENT_TYPE);
+    }
+
+    /** Writes {@code e} as problem+json. */
+    public static void problem(Context ctx, ApiException e) {
+        ctx.status(e.status());
+        ctx.contentType(Problem.CONTENT_TYPE);
+        ctx.result(toJson(ctx, Problem.of(e, ctx.path())));
+    }
+
+    private static String toJson(Context ctx, Object o) {
+        return ctx.jsonMapper().toJsonString(o, o.getClass());
+    }
+
+    private static String jsonPath(JsonProcessingException e) {
+        if (e instanceof com.fasterxml.jackson.databind.JsonMappingException jm && !jm.getPath().isEmpty()) {
+            StringBuilder sb = new StringBuilder();
+            for (var ref : jm.getPath()) {
+                if (ref.getFieldName() != null) {
+                    if (sb.length() > 0) sb.append('.');
+                    sb.append(ref.getFieldName());
+                } else if (ref.getIndex() >= 0) {
+                    sb.append('[').append(ref.getIndex()).append(']');
+                }
+            }
+            return sb.toString();
+        }
+        return "body";
+    }
+
+    private static String slug(int status) {
+        return switch (status) {
+            case 400 -> "validation";
+            case 401 -> "unauthorized";
+            case 403 -> "forbidden";
+            case 404 -> "not-found";
+            case 405 -> "method-not-allowed";
+            case 406 -> "not-acceptable";
+            case 413 -> "body-too-large";
+            case 415 -> "unsupported-media-type";
+            case 503 -> "unavailable";
+            default -> "http-" + status;
+        };
+    }
+
+    private static String titleOf(int status) {
+        return switch (status) {
+            case 400 -> "Invalid request";
+            case 401 -> "Unauthorized";
+            case 403 -> "Forbidden";
+            case 404 -> "Not found";
+            case 405 -> "Method not allowed";
+            case 406 -> "Not acceptable";
+            case 413 -> "Request body too large";
+            case 415 -> "Unsupported media type";
+            case 503 -> "Service unavailable";
+            default -> "HTTP " + status;
+        };
+    }
+}
