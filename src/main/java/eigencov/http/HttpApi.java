@@ -9,6 +9,10 @@ import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.SerializationFeature;
 import com.fasterxml.jackson.databind.json.JsonMapper;
 import com.fasterxml.jackson.datatype.jsr310.JavaTimeModule;
+import eigencov.service.ConflictException;
+import eigencov.service.InvalidInputException;
+import eigencov.service.NotFoundException;
+import eigencov.service.UnavailableException;
 import io.javalin.Javalin;
 import io.javalin.http.Context;
 import io.javalin.http.HttpResponseException;
@@ -87,6 +91,18 @@ public final class HttpApi {
             for (RouteModule m : modules) m.register(config.routes);
 
             config.routes.exception(ApiException.class, (e, ctx) -> problem(ctx, e));
+            config.routes.exception(NotFoundException.class, (e, ctx) -> problem(ctx,
+                    new ApiException(404, "not-found", e.what() + " not found", e.getMessage(), List.of())));
+            config.routes.exception(InvalidInputException.class, (e, ctx) -> problem(ctx,
+                    new ApiException(e.unprocessable() ? 422 : 400, e.type(), e.unprocessable() ? "Cannot process request" : "Invalid request",
+                            e.getMessage(), e.issues().stream().map(i -> new FieldError(i.row(), i.field(), i.message())).toList())));
+            config.routes.exception(ConflictException.class, (e, ctx) -> problem(ctx,
+                    new ApiException(409, "conflict", "Conflict", e.getMessage(), List.of())));
+            config.routes.exception(UnavailableException.class, (e, ctx) -> {
+                LOG.warn("request {} {} {}: {}", ctx.attribute("requestId"), ctx.method(), ctx.path(), e.getMessage());
+                ctx.header("Retry-After", "5");
+                problem(ctx, new ApiException(503, "unavailable", "Service unavailable", e.getMessage(), List.of()));
+            });
             config.routes.exception(JsonProcessingException.class, (e, ctx) -> problem(ctx,
                     ApiException.badRequest("request body is not valid JSON for this endpoint: " + e.getOriginalMessage(),
                             List.of(FieldError.field(jsonPath(e), e.getOriginalMessage())))));
