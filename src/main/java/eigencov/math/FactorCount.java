@@ -135,16 +135,38 @@ public final class FactorCount {
     }
 
     /**
-     * Counts eigenvalues above the Marchenko-Pastur upper edge sigma2 (1 + sqrt(K/T_eff))^2, where
-     * sigma2 is the mean of the residual spectrum (trace minus the counted eigenvalues, over K - k),
-     * iterated until the count is stable (with k = 0 this is trace/K; for a correlation matrix
-     * after removing the first factor it is 1 - lambda_1/K, methods.md section 2).
+     * Tracy-Widom (beta = 1) 99 % quantile, used as the margin above the edge: 2.02 (from memory,
+     * Johnstone 2001, Table 1). Without a margin the largest pure-noise eigenvalue crosses the bare
+     * edge in about one panel in six (marchenko_pastur/SOURCE.md), which would add a spurious factor.
+     */
+    public static final double TRACY_WIDOM_99 = 2.02;
+
+    /**
+     * Johnstone (2001) finite-size threshold for the largest noise eigenvalue of a K-asset covariance
+     * from n dates with unit noise variance: centre (sqrt(n-1) + sqrt(K))^2 / n plus {@code quantile}
+     * times the scale (sqrt(n-1) + sqrt(K)) (1/sqrt(n-1) + 1/sqrt(K))^(1/3) / n.
+     */
+    public static double johnstoneThreshold(double assets, double dates, double quantile) {
+        double a = Math.sqrt(Math.max(dates - 1, 1));
+        double b = Math.sqrt(assets);
+        double centre = (a + b) * (a + b) / dates;
+        double scale = (a + b) * Math.cbrt(1 / a + 1 / b) / dates;
+        return centre + quantile * scale;
+    }
+
+    /**
+     * Counts eigenvalues above the Marchenko-Pastur upper edge of the residual spectrum,
+     * sigma2 max((1 + sqrt(K/T_eff))^2, Johnstone's 99 % Tracy-Widom threshold), where sigma2 is the mean
+     * of the residual spectrum (trace minus the counted eigenvalues, over K - k), iterated until the
+     * count is stable (with k = 0 this is trace/K; for a correlation matrix after removing the first
+     * factor it is 1 - lambda_1/K, methods.md section 2).
      */
     private static FactorCountReport randomMatrix(FactorRule.RandomMatrix rule, double[] ev, int assets,
                                                   double tEff, double trace) {
+        double unitEdge = marchenkoPasturEdges(1, assets, tEff)[1];
+        double unitThreshold = Math.max(unitEdge, johnstoneThreshold(assets, tEff, TRACY_WIDOM_99));
         int k = 0;
         double sigma2 = 0;
-        double edge = 0;
         int iterations = 0;
         while (iterations < 100) {
             iterations++;
@@ -153,9 +175,9 @@ public final class FactorCount {
                 top += ev[j];
             }
             sigma2 = assets > k ? Math.max(0, trace - top) / (assets - k) : 0;
-            edge = marchenkoPasturEdges(sigma2, assets, tEff)[1];
+            double threshold = sigma2 * unitThreshold;
             int count = 0;
-            while (count < ev.length && ev[count] > edge) {
+            while (count < ev.length && ev[count] > threshold) {
                 count++;
             }
             if (count == k) {
@@ -163,17 +185,19 @@ public final class FactorCount {
             }
             k = count;
         }
+        double threshold = sigma2 * unitThreshold;
         double[] ratio = new double[ev.length];
         for (int j = 0; j < ev.length; j++) {
-            ratio[j] = edge > 0 ? ev[j] / edge : Double.MAX_VALUE;
+            ratio[j] = threshold > 0 ? ev[j] / threshold : Double.MAX_VALUE;
         }
         Map<String, Double> p = new LinkedHashMap<>();
         p.put("sigma2", sigma2);
-        p.put("edge", edge);
+        p.put("edge", sigma2 * unitEdge);
+        p.put("threshold", threshold);
         p.put("q", assets / tEff);
         p.put("T", tEff);
         p.put("iterations", (double) iterations);
-        return report(rule, k, ev.length, "lambda_k / edge", 1, ratio, p);
+        return report(rule, k, ev.length, "lambda_k / threshold", 1, ratio, p);
     }
 
     private static FactorCountReport report(FactorRule rule, int unclipped, int rank, String criterion, int firstK,
