@@ -60,6 +60,11 @@ public record ReturnPanel(List<LocalDate> dates, List<String> tickers, double[] 
         return values.clone();
     }
 
+    /** The values without copying, for kernels in this package. */
+    double[] valuesView() {
+        return values;
+    }
+
     /** Value at date row {@code t} and ticker column {@code i} (NaN when missing); no copy. */
     public double value(int t, int i) {
         return values[t * tickers.size() + i];

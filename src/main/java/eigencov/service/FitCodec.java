@@ -5,6 +5,7 @@ import com.fasterxml.jackson.databind.DeserializationFeature;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.ObjectReader;
 import eigencov.math.AlignmentReport;
+import eigencov.math.Basis;
 import eigencov.math.Exclusion;
 import eigencov.math.FactorCountReport;
 import eigencov.math.FactorModel;
@@ -20,7 +21,8 @@ public final class FitCodec {
 
     /** The engine's reports, stored as one JSON document beside the arrays. */
     public record Reports(List<Exclusion> excluded, FactorCountReport factorCount, ImputationReport imputation,
-                          AlignmentReport alignment, double effectiveObservations, long computeNanos) {
+                          AlignmentReport alignment, double effectiveObservations, long computeNanos, int rank,
+                          double totalVariance, Basis basis) {
     }
 
     private final ObjectMapper mapper;
@@ -52,10 +54,12 @@ public final class FitCodec {
         }
         FactorModel m = new FactorModel(d.universe(), d.factors(), d.exposures(), d.factorCovariance(), d.specificVariances());
         return new FitResult(m, d.dates(), d.eigenvalues(), d.varianceShare(), d.means(), d.factorReturns(), rep.excluded(),
-                rep.factorCount(), rep.imputation(), rep.alignment(), rep.effectiveObservations(), rep.computeNanos());
+                rep.factorCount(), rep.imputation(), rep.alignment(), rep.effectiveObservations(), rep.computeNanos(), rep.rank(),
+                rep.totalVariance(), rep.basis());
     }
 
     public static Reports reports(FitResult r) {
-        return new Reports(r.excluded(), r.factorCount(), r.imputation(), r.alignment(), r.effectiveObservations(), r.computeNanos());
+        return new Reports(r.excluded(), r.factorCount(), r.imputation(), r.alignment(), r.effectiveObservations(), r.computeNanos(),
+                r.rank(), r.totalVariance(), r.basis());
     }
 }
