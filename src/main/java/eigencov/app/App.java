@@ -1,9 +1,13 @@
 package eigencov.app;
 
 import com.fasterxml.jackson.databind.ObjectMapper;
+import eigencov.http.ApiKeys;
 import eigencov.http.HttpApi;
+import eigencov.http.PanelRoutes;
 import eigencov.http.RouteModule;
+import eigencov.service.PanelService;
 import eigencov.store.Database;
+import eigencov.store.PanelStore;
 import io.javalin.Javalin;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
@@ -35,8 +39,11 @@ public final class App implements AutoCloseable {
         try {
             ObjectMapper mapper = HttpApi.objectMapper();
             List<RouteModule> modules = new ArrayList<>();
+            PanelService panels = new PanelService(new PanelStore(db), config.maxAbsReturn());
+            modules.add(new PanelRoutes(panels, config.maxBodyBytes(), mapper.getFactory()));
             Javalin http = HttpApi.create(config.bindHost(), config.port(), config.maxBodyBytes(), config.shutdownGraceMs(),
-                    mapper, db::isReachable, modules);
+                    mapper, db::isReachable, ApiKeys.parse(config.apiKeys()), modules);
+            if (config.demo()) new DemoLoader(config.demoDir(), panels, mapper).load();
             return new App(config, db, http);
         } catch (RuntimeException e) {
             db.close();
