@@ -1,23 +1,24 @@
 package eigencov.app;
 
 import com.fasterxml.jackson.databind.ObjectMapper;
+import eigencov.http.ApiKeys;
 import eigencov.http.HttpApi;
 import eigencov.http.ModelRoutes;
+import eigencov.http.PanelRoutes;
 import eigencov.http.RouteModule;
 import eigencov.math.FactorFitter;
-import eigencov.service.DemoLoader;
 import eigencov.service.FitCodec;
 import eigencov.service.FitLookup;
 import eigencov.service.FitService;
 import eigencov.service.IngestListener;
 import eigencov.service.ModelService;
+import eigencov.service.PanelService;
 import eigencov.service.RefitScheduler;
 import eigencov.service.ServedFits;
 import eigencov.store.Database;
 import eigencov.store.FitRepository;
 import eigencov.store.ModelRepository;
-import eigencov.store.ReturnWriter;
-import eigencov.store.WindowReader;
+import eigencov.store.PanelStore;
 import io.javalin.Javalin;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
@@ -54,8 +55,7 @@ public final class App implements AutoCloseable {
     }
 
     /** The fit side of the wiring: serving snapshots, fitting, scheduling, and their background threads. */
-    private record Fits(ServedFits served, FitService service, ModelService models, RefitScheduler scheduler,
-                        ReturnWriter returns, DemoLoader demo, ScheduledExecutorService background) {
+    private record Fits(ServedFits served, RefitScheduler scheduler, ScheduledExecutorService background) {
     }
 
     /** Builds everything (opening the store and migrating it) without starting the HTTP server. */
@@ -70,20 +70,21 @@ public final class App implements AutoCloseable {
         try {
             ObjectMapper mapper = HttpApi.objectMapper();
             List<RouteModule> modules = new ArrayList<>();
+            PanelStore panelStore = new PanelStore(db);
             ModelRepository modelRepo = new ModelRepository(db.dataSource());
             FitRepository fitRepo = new FitRepository(db.dataSource());
-            WindowReader windows = new WindowReader(db.dataSource());
             ServedFits served = new ServedFits(fitRepo, modelRepo, new FitCodec(mapper));
-            FitService fitService = new FitService(modelRepo, fitRepo, windows, served, new FitCodec(mapper), new FactorFitter(null), mapper, clock);
-            ModelService modelService = new ModelService(modelRepo, fitRepo, windows, served, mapper, clock);
+            FitService fitService = new FitService(modelRepo, fitRepo, panelStore, served, new FitCodec(mapper), new FactorFitter(null), mapper, clock);
+            ModelService modelService = new ModelService(modelRepo, fitRepo, panelStore, served, mapper, clock);
             background = Executors.newScheduledThreadPool(2, daemonThreads("eigencov-refit-"));
             RefitScheduler scheduler = new RefitScheduler(modelRepo, fitRepo, fitService, background, clock, RefitScheduler.DEFAULT_TICK);
+            PanelService panels = new PanelService(panelStore, config.maxAbsReturn(), scheduler);
+            modules.add(new PanelRoutes(panels, config.maxBodyBytes(), mapper.getFactory()));
             modules.add(new ModelRoutes(modelService, fitService));
             Javalin http = HttpApi.create(config.bindHost(), config.port(), config.maxBodyBytes(), config.shutdownGraceMs(),
-                    mapper, db::isReachable, modules);
-            ReturnWriter returns = new ReturnWriter(db.dataSource(), db.dialect());
-            DemoLoader demo = new DemoLoader(returns, windows, modelService, fitService, mapper);
-            return new App(config, db, http, new Fits(served, fitService, modelService, scheduler, returns, demo, background));
+                    mapper, db::isReachable, ApiKeys.parse(config.apiKeys()), modules);
+            if (config.demo()) new DemoLoader(config.demoDir(), panels, panelStore, modelService, fitService, mapper).load();
+            return new App(config, db, http, new Fits(served, scheduler, background));
         } catch (RuntimeException e) {
             if (background != null) background.shutdownNow();
             db.close();
@@ -100,11 +101,8 @@ public final class App implements AutoCloseable {
         };
     }
 
-    /** Starts serving; returns this for chaining. With {@code --demo}, loads the demo first (once per store). */
+    /** Starts serving and the background refits; returns this for chaining. */
     public App start() {
-        if (config.demo()) {
-            fits.demo().loadIfAbsent(config.demoDir());
-        }
         fits.scheduler().start();
         fits.background().scheduleWithFixedDelay(this::pollFits, FIT_POLL_SECONDS, FIT_POLL_SECONDS, TimeUnit.SECONDS);
         http.start();
@@ -138,11 +136,6 @@ public final class App implements AutoCloseable {
     /** For the ingest service: told after each committed batch, it starts the fits that follow an ingest. */
     public IngestListener ingestListener() {
         return fits.scheduler();
-    }
-
-    /** Writes returns straight into the store (demo and tests, until the ingest service is wired here). */
-    public ReturnWriter returnWriter() {
-        return fits.returns();
     }
 
     private void pollFits() {

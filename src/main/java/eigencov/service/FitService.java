@@ -9,7 +9,7 @@ import eigencov.store.FitRepository;
 import eigencov.store.FitRow;
 import eigencov.store.ModelRepository;
 import eigencov.store.ModelRow;
-import eigencov.store.WindowReader;
+import eigencov.store.PanelStore;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
@@ -38,7 +38,7 @@ public final class FitService {
 
     private final ModelRepository models;
     private final FitRepository fits;
-    private final WindowReader windows;
+    private final PanelStore windows;
     private final ServedFits served;
     private final FitCodec codec;
     private final FactorFitter fitter;
@@ -46,7 +46,7 @@ public final class FitService {
     private final Clock clock;
     private final ConcurrentHashMap<String, ReentrantLock> locks = new ConcurrentHashMap<>();
 
-    public FitService(ModelRepository models, FitRepository fits, WindowReader windows, ServedFits served, FitCodec codec,
+    public FitService(ModelRepository models, FitRepository fits, PanelStore windows, ServedFits served, FitCodec codec,
                       FactorFitter fitter, ObjectMapper mapper, Clock clock) {
         this.models = models;
         this.fits = fits;

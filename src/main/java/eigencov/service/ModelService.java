@@ -5,7 +5,7 @@ import com.fasterxml.jackson.databind.ObjectMapper;
 import eigencov.store.FitRepository;
 import eigencov.store.ModelRepository;
 import eigencov.store.ModelRow;
-import eigencov.store.WindowReader;
+import eigencov.store.PanelStore;
 
 import java.time.Clock;
 import java.time.Duration;
@@ -22,12 +22,12 @@ import java.util.List;
 public final class ModelService {
     private final ModelRepository models;
     private final FitRepository fits;
-    private final WindowReader panels;
+    private final PanelStore panels;
     private final ServedFits served;
     private final ObjectMapper mapper;
     private final Clock clock;
 
-    public ModelService(ModelRepository models, FitRepository fits, WindowReader panels, ServedFits served, ObjectMapper mapper, Clock clock) {
+    public ModelService(ModelRepository models, FitRepository fits, PanelStore panels, ServedFits served, ObjectMapper mapper, Clock clock) {
         this.models = models;
         this.fits = fits;
         this.panels = panels;
@@ -45,7 +45,7 @@ public final class ModelService {
         if (spec == null) throw InvalidInputException.field("body", "a model spec is required");
         List<InvalidInputException.Issue> problems = spec.problems();
         if (!problems.isEmpty()) throw new InvalidInputException("invalid model spec: " + problems.size() + " problem(s)", problems);
-        if (!panels.panelExists(spec.panel())) {
+        if (panels.panel(spec.panel()).isEmpty()) {
             throw new InvalidInputException("panel '" + spec.panel() + "' does not exist",
                     List.of(new InvalidInputException.Issue(null, "panel", "no panel named '" + spec.panel() + "'; ingest returns first")),
                     true, "unknown-panel");

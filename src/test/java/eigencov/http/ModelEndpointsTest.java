@@ -35,7 +35,8 @@ class ModelEndpointsTest {
         app = App.create(AppConfig.forTest("models-http")).start();
         RestAssured.port = app.port();
         dates = SyntheticReturns.weekdays(LocalDate.of(2024, 1, 1), 60);
-        app.returnWriter().upsert("demo", SyntheticReturns.rows(21, SyntheticReturns.tickers(10), dates));
+        given().contentType("text/csv").body(SyntheticReturns.csv(SyntheticReturns.rows(21, SyntheticReturns.tickers(10), dates)))
+                .post("/v1/panels/demo/returns").then().statusCode(200);
         put("listed", SPEC, 201);
     }
 

@@ -4,7 +4,6 @@ import eigencov.math.AlignmentReport;
 import eigencov.math.FitResult;
 import eigencov.math.ReturnPanel;
 import eigencov.store.FitRow;
-import eigencov.store.ReturnWriter;
 import org.junit.jupiter.api.AfterEach;
 import org.junit.jupiter.api.Test;
 
@@ -52,8 +51,8 @@ class FitServiceTest {
         FitResult before = fx.served.resolve("m", asOf, null).result();
 
         // Ingest after the fit's date, and correct an old return inside its window.
-        fx.writer.upsert("p", List.of(new ReturnWriter.Row(dates.get(50), "T03", 0.25),
-                new ReturnWriter.Row(dates.get(79).plusDays(3), "T03", 0.01)));
+        fx.ingest("p", List.of(new SyntheticReturns.Row(dates.get(50), "T03", 0.25),
+                new SyntheticReturns.Row(dates.get(79).plusDays(3), "T03", 0.01)));
 
         ServedFits fresh = new ServedFits(fx.fitRepo, fx.modelRepo, new FitCodec(fx.mapper)); // reads the store, no cache
         FitResult stored = fresh.resolve("m", asOf, null).result();
@@ -114,7 +113,7 @@ class FitServiceTest {
     void backfill_cuts_the_same_windows_the_store_reads_as_of_each_date() {
         List<LocalDate> dates = fx.panel("p", 8, 70, 5);
         // A ticker that starts late and one that stops early: the cut must drop them where the store would.
-        fx.writer.upsert("p", List.of(new ReturnWriter.Row(dates.get(65), "LATE", 0.01), new ReturnWriter.Row(dates.get(2), "EARLY", 0.02)));
+        fx.ingest("p", List.of(new SyntheticReturns.Row(dates.get(65), "LATE", 0.01), new SyntheticReturns.Row(dates.get(2), "EARLY", 0.02)));
         ReturnPanel all = fx.windows.loadWindow("p", dates.get(69), Integer.MAX_VALUE);
         for (int end : new int[] {29, 40, 69}) {
             ReturnPanel cut = Windows.cut(all, dates.get(end), 30);

@@ -89,6 +89,10 @@ class RefitSchedulerTest {
         assertEquals(FitService.SCHEDULE, failed.origin());
     }
 
+    private static void ingest(PanelService panels, SyntheticReturns.Row row) {
+        panels.ingest("p", ReturnsFormat.CSV, new java.io.ByteArrayInputStream(SyntheticReturns.csv(List.of(row)).getBytes()));
+    }
+
     @Test
     void an_ingest_that_adds_a_new_last_date_fits_only_the_models_that_ask_for_it() throws Exception {
         List<LocalDate> dates = fx.panel("p", 8, 40, 4);
@@ -100,11 +104,16 @@ class RefitSchedulerTest {
         executor.submit(() -> { }).get(); // the executor is single-threaded: everything queued before has run
         assertEquals(0, fx.fits.list("follows").size());
 
-        s.afterIngest("p", dates.get(38), dates.get(39));
+        // Through the ingest service: a new last date fits, a correction of an old date does not.
+        PanelService panels = new PanelService(fx.windows, 10, s);
+        ingest(panels, new SyntheticReturns.Row(dates.get(39).plusDays(3), "T00", 0.01));
+        executor.submit(() -> { }).get();
+        ingest(panels, new SyntheticReturns.Row(dates.get(5), "T00", 0.02));
         executor.submit(() -> { }).get();
         List<FitView> fits = fx.fits.list("follows");
         assertEquals(1, fits.size());
         assertEquals(FitService.INGEST, fits.get(0).origin());
+        assertEquals(dates.get(39).plusDays(3), fits.get(0).window().to());
         assertEquals(0, fx.fits.list("ignores").size());
     }
 }

@@ -6,9 +6,10 @@ import eigencov.math.FactorFitter;
 import eigencov.store.Database;
 import eigencov.store.FitRepository;
 import eigencov.store.ModelRepository;
-import eigencov.store.ReturnWriter;
-import eigencov.store.WindowReader;
+import eigencov.store.PanelStore;
 
+import java.io.ByteArrayInputStream;
+import java.nio.charset.StandardCharsets;
 import java.time.Clock;
 import java.time.LocalDate;
 import java.util.List;
@@ -22,8 +23,8 @@ final class ServiceFixture implements AutoCloseable {
     final ObjectMapper mapper = HttpApi.objectMapper();
     final ModelRepository modelRepo;
     final FitRepository fitRepo;
-    final WindowReader windows;
-    final ReturnWriter writer;
+    final PanelStore windows;
+    final PanelService panels;
     final ServedFits served;
     final FitService fits;
     final ModelService models;
@@ -38,17 +39,22 @@ final class ServiceFixture implements AutoCloseable {
         this.clock = clock;
         modelRepo = new ModelRepository(db.dataSource());
         fitRepo = new FitRepository(db.dataSource());
-        windows = new WindowReader(db.dataSource());
-        writer = new ReturnWriter(db.dataSource(), db.dialect());
+        windows = new PanelStore(db);
         served = new ServedFits(fitRepo, modelRepo, new FitCodec(mapper));
         fits = new FitService(modelRepo, fitRepo, windows, served, new FitCodec(mapper), new FactorFitter(null), mapper, clock);
         models = new ModelService(modelRepo, fitRepo, windows, served, mapper, clock);
+        panels = new PanelService(windows, 10, (panel, before, after) -> { });
+    }
+
+    /** Upserts {@code rows} into {@code panel} through the ingest service, as an upload would. */
+    void ingest(String panel, List<SyntheticReturns.Row> rows) {
+        panels.ingest(panel, ReturnsFormat.CSV, new ByteArrayInputStream(SyntheticReturns.csv(rows).getBytes(StandardCharsets.UTF_8)));
     }
 
     /** Writes the synthetic panel {@code panel}: {@code tickers} names over {@code days} weekdays from 2024-01-01. */
     List<LocalDate> panel(String panel, int tickers, int days, long seed) {
         List<LocalDate> dates = SyntheticReturns.weekdays(LocalDate.of(2024, 1, 1), days);
-        writer.upsert(panel, SyntheticReturns.rows(seed, SyntheticReturns.tickers(tickers), dates));
+        ingest(panel, SyntheticReturns.rows(seed, SyntheticReturns.tickers(tickers), dates));
         return dates;
     }
 

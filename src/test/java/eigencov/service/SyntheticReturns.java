@@ -1,7 +1,5 @@
 package eigencov.service;
 
-import eigencov.store.ReturnWriter;
-
 import java.time.DayOfWeek;
 import java.time.LocalDate;
 import java.util.ArrayList;
@@ -11,6 +9,17 @@ import java.util.Random;
 /** Seeded returns with a planted factor structure (a market factor and one more), for service and HTTP tests. */
 public final class SyntheticReturns {
     private SyntheticReturns() {
+    }
+
+    /** One simple return. */
+    public record Row(LocalDate date, String ticker, double value) {
+    }
+
+    /** The rows as an upload body: CSV with the header date,ticker,value. */
+    public static String csv(List<Row> rows) {
+        StringBuilder sb = new StringBuilder("date,ticker,value\n");
+        for (Row r : rows) sb.append(r.date()).append(',').append(r.ticker()).append(',').append(r.value()).append('\n');
+        return sb.toString();
     }
 
     /** {@code count} weekdays starting at {@code first} (or the next weekday). */
@@ -35,7 +44,7 @@ public final class SyntheticReturns {
      * r_ti = b_i1 m_t + b_i2 s_t + e_ti with market and second factor of daily sd 1 % and 0.5 %,
      * specific sd 1 %, loadings drawn once per ticker from the seed.
      */
-    public static List<ReturnWriter.Row> rows(long seed, List<String> tickers, List<LocalDate> dates) {
+    public static List<Row> rows(long seed, List<String> tickers, List<LocalDate> dates) {
         Random rnd = new Random(seed);
         int k = tickers.size();
         double[] b1 = new double[k];
@@ -44,12 +53,12 @@ public final class SyntheticReturns {
             b1[i] = 0.7 + 0.6 * rnd.nextDouble();
             b2[i] = i % 2 == 0 ? 1 : -1;
         }
-        List<ReturnWriter.Row> out = new ArrayList<>();
+        List<Row> out = new ArrayList<>();
         for (LocalDate d : dates) {
             double m = 0.01 * rnd.nextGaussian();
             double s = 0.005 * rnd.nextGaussian();
             for (int i = 0; i < k; i++) {
-                out.add(new ReturnWriter.Row(d, tickers.get(i), b1[i] * m + b2[i] * s + 0.01 * rnd.nextGaussian()));
+                out.add(new Row(d, tickers.get(i), b1[i] * m + b2[i] * s + 0.01 * rnd.nextGaussian()));
             }
         }
         return out;
