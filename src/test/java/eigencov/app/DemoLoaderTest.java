@@ -30,6 +30,11 @@ class DemoLoaderTest {
              "backfill": "monthly"}
             """;
 
+    /** Requests that close their connection, so that stopping the server does not wait out idle keep-alive connections. */
+    private static io.restassured.specification.RequestSpecification http() {
+        return given().header("Connection", "close");
+    }
+
     @Test
     void month_ends_are_the_last_date_of_each_month_with_a_full_window() {
         List<LocalDate> dates = List.of(LocalDate.of(2024, 1, 30), LocalDate.of(2024, 1, 31), LocalDate.of(2024, 2, 1),
@@ -51,18 +56,18 @@ class DemoLoaderTest {
         AppConfig config = AppConfig.defaults().withPort(0).withDbUrl("jdbc:h2:file:" + tmp.resolve("data/eigencov")).withDemo(true, demo);
         try (App app = App.create(config).start()) {
             RestAssured.port = app.port();
-            given().get("/v1/models").then().statusCode(200).body("models.name", contains("mini-long", "mini-short"));
-            given().get("/v1/models/mini-short/fits").then().statusCode(200).body("fits.asOf",
+            http().get("/v1/models").then().statusCode(200).body("models.name", contains("mini-long", "mini-short"));
+            http().get("/v1/models/mini-short/fits").then().statusCode(200).body("fits.asOf",
                     contains("2024-06-14", "2024-05-31", "2024-04-30", "2024-03-29", "2024-02-29"));
-            given().get("/v1/models/mini-long/fits").then().statusCode(200).body("fits", hasSize(3));
+            http().get("/v1/models/mini-long/fits").then().statusCode(200).body("fits", hasSize(3));
             ServedFit march = app.fitLookup().resolve("mini-short", LocalDate.of(2024, 4, 15), null);
             assertEquals(LocalDate.of(2024, 3, 29), march.ref().asOf());
             assertEquals(LocalDate.of(2024, 6, 14), app.fitLookup().resolve("mini-long", null, null).ref().asOf());
         }
         try (App again = App.create(config).start()) {
             RestAssured.port = again.port();
-            given().get("/v1/models/mini-short/fits").then().statusCode(200).body("fits", hasSize(5));
-            given().get("/v1/panels/mini").then().statusCode(200).body("rows", org.hamcrest.Matchers.equalTo(12 * 120));
+            http().get("/v1/models/mini-short/fits").then().statusCode(200).body("fits", hasSize(5));
+            http().get("/v1/panels/mini").then().statusCode(200).body("rows", org.hamcrest.Matchers.equalTo(12 * 120));
         }
     }
 }
