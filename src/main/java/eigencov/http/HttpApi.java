@@ -17,6 +17,7 @@ import io.javalin.Javalin;
 import io.javalin.http.Context;
 import io.javalin.http.HttpResponseException;
 import io.javalin.json.JavalinJackson;
+import org.eclipse.jetty.server.handler.GracefulHandler;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
@@ -57,16 +58,22 @@ public final class HttpApi {
      * @param maxBodyBytes largest request body read into memory by Javalin
      * @param stopGraceMs  how long a stop lets in-flight requests finish
      * @param ready        store reachability for /ready
+     * @param keys         API keys checked before every request ({@link ApiKeys#none()} = open)
      * @param modules      the endpoint groups
      */
     public static Javalin create(String host, int port, long maxBodyBytes, long stopGraceMs, ObjectMapper mapper,
-                                 BooleanSupplier ready, List<RouteModule> modules) {
+                                 BooleanSupplier ready, ApiKeys keys, List<RouteModule> modules) {
         return Javalin.create(config -> {
             config.startup.showJavalinBanner = false;
             config.startup.showOldJavalinVersionWarning = false;
             config.jetty.host = host;
             config.jetty.port = port;
-            config.jetty.modifyServer(server -> server.setStopTimeout(stopGraceMs));
+            config.jetty.modifyServer(server -> {
+                // On stop, GracefulHandler refuses new requests and lets those in flight finish,
+                // for up to the stop timeout; Javalin attaches its own handler inside it.
+                server.setStopTimeout(stopGraceMs);
+                server.setHandler(new GracefulHandler());
+            });
             config.http.maxRequestSize = maxBodyBytes;
             config.http.defaultContentType = "application/json";
             config.jsonMapper(new JavalinJackson(mapper, false));
@@ -79,6 +86,7 @@ public final class HttpApi {
                 ctx.attribute("requestId", id);
                 ctx.header(REQUEST_ID, id);
             });
+            config.routes.before(keys::authorize);
 
             config.routes.get("/health", ctx -> ctx.json(Map.of("status", "up")));
             config.routes.get("/ready", ctx -> {

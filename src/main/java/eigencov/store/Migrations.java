@@ -27,7 +27,8 @@ final class Migrations {
 
     /** Every migration, oldest first. Never edit a released one: add a new version. */
     static final List<String> SCRIPTS = List.of(
-            "V1__panels.sql");
+            "V1__panels.sql",
+            "V2__models_fits.sql");
 
     private final DataSource ds;
     private final Database.Dialect dialect;
