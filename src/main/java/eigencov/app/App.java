@@ -2,7 +2,10 @@ package eigencov.app;
 
 import com.fasterxml.jackson.databind.ObjectMapper;
 import eigencov.http.HttpApi;
+import eigencov.http.QueryRoutes;
 import eigencov.http.RouteModule;
+import eigencov.service.FitLookup;
+import eigencov.service.QueryService;
 import eigencov.store.Database;
 import io.javalin.Javalin;
 import org.slf4j.Logger;
@@ -31,10 +34,19 @@ public final class App implements AutoCloseable {
 
     /** Builds everything (opening the store and migrating it) without starting the HTTP server. */
     public static App create(AppConfig config) {
+        return create(config, null);
+    }
+
+    /**
+     * As {@link #create(AppConfig)}, and the query endpoints answer from {@code fits} (null: no
+     * query endpoints). For callers that serve fits from elsewhere: tests and the query benchmark.
+     */
+    public static App create(AppConfig config, FitLookup fits) {
         Database db = Database.open(config.dbUrl(), config.dbUser(), config.dbPassword(), config.dbPoolSize());
         try {
             ObjectMapper mapper = HttpApi.objectMapper();
             List<RouteModule> modules = new ArrayList<>();
+            if (fits != null) modules.add(new QueryRoutes(new QueryService(fits), mapper));
             Javalin http = HttpApi.create(config.bindHost(), config.port(), config.maxBodyBytes(), config.shutdownGraceMs(),
                     mapper, db::isReachable, modules);
             return new App(config, db, http);

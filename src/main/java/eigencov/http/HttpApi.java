@@ -32,6 +32,8 @@ import java.util.function.BooleanSupplier;
 public final class HttpApi {
     private static final Logger LOG = LoggerFactory.getLogger("eigencov.http");
     public static final String REQUEST_ID = "X-Request-Id";
+    /** Room for response headers (Jetty's default is 8 KB). */
+    static final int RESPONSE_HEADER_BYTES = 128 * 1024;
 
     private HttpApi() {
     }
@@ -67,6 +69,8 @@ public final class HttpApi {
             config.jetty.host = host;
             config.jetty.port = port;
             config.jetty.modifyServer(server -> server.setStopTimeout(stopGraceMs));
+            // .npy answers list their row tickers in a header: 3,000 names of up to 32 characters is ~100 KB
+            config.jetty.modifyHttpConfiguration(http -> http.setResponseHeaderSize(RESPONSE_HEADER_BYTES));
             config.http.maxRequestSize = maxBodyBytes;
             config.http.defaultContentType = "application/json";
             config.jsonMapper(new JavalinJackson(mapper, false));
