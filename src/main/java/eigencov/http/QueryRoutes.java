@@ -100,7 +100,8 @@ public final class QueryRoutes implements RouteModule {
                     List.of(FieldError.field("Accept", "factor form is JSON only")));
         }
         CovarianceAnswer a = service.covariance(model(ctx), p.selector(), q);
-        String key = "covariance " + q;
+        String key = "covariance|" + q.form() + "|" + scaleKey(q.scale()) + "|" + q.correlation() + "|" + q.missing()
+                + "|" + String.join(",", q.tickers());
         if (a instanceof CovarianceMatrix m) {
             responses.covarianceMatrix(ctx, rep, m, key);
         } else {
@@ -121,7 +122,7 @@ public final class QueryRoutes implements RouteModule {
     }
 
     private void exposures(Context ctx, QueryParams p, Representation rep, ExposuresQuery q) {
-        responses.exposures(ctx, rep, service.exposures(model(ctx), p.selector(), q), "exposures " + q);
+        responses.exposures(ctx, rep, service.exposures(model(ctx), p.selector(), q), "exposures|" + q.missing() + "|" + String.join(",", q.tickers()));
     }
 
     private void factors(Context ctx) {
@@ -144,7 +145,29 @@ public final class QueryRoutes implements RouteModule {
         Representation.negotiate(ctx.header("Accept"), JSON_ONLY);
         RiskBody b = body(ctx, RiskBody.class);
         RiskQuery q = new RiskQuery(b.weights(), b.benchmark(), QueryParams.scale(b.scale(), b.horizonDays()), p.missing());
-        responses.risk(ctx, service.risk(model(ctx), p.selector(), q), "risk " + q);
+        responses.risk(ctx, service.risk(model(ctx), p.selector(), q), riskKey(q));
+    }
+
+    /**
+     * The normalised request for the ETag. Weights enter as their exact bits in hex: the
+     * benchmark showed decimal formatting of 3,000 weights costing more than the risk itself.
+     */
+    private static String riskKey(RiskQuery q) {
+        StringBuilder sb = new StringBuilder(32 * (q.weights().size() + 1));
+        sb.append("risk|").append(scaleKey(q.scale())).append('|').append(q.missing()).append("|weights");
+        weightsKey(sb, q.weights());
+        if (q.benchmark() != null) weightsKey(sb.append("|benchmark"), q.benchmark());
+        return sb.toString();
+    }
+
+    private static void weightsKey(StringBuilder sb, Map<String, Double> w) {
+        for (Map.Entry<String, Double> e : w.entrySet()) {
+            sb.append(',').append(e.getKey()).append('=').append(Long.toHexString(Double.doubleToLongBits(e.getValue())));
+        }
+    }
+
+    private static String scaleKey(eigencov.service.Scale s) {
+        return s.name() + ":" + s.days();
     }
 
     private static String model(Context ctx) {

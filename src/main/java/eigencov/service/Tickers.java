@@ -43,8 +43,24 @@ final class Tickers {
     /** Why {@code t} is not a well-formed ticker, or null when it is. */
     static String syntaxProblem(String t) {
         if (t == null) return "must be a ticker, was null";
-        if (!SYNTAX.matcher(t).matches()) return "'" + abbreviate(t) + "' is not a ticker (1-32 of A-Z a-z 0-9 . _ : / -)";
+        if (!wellFormed(t)) return "'" + abbreviate(t) + "' is not a ticker (1-32 of A-Z a-z 0-9 . _ : / -)";
         return null;
+    }
+
+    /**
+     * Same test as {@link #SYNTAX}, as a plain loop: a 3,000-name portfolio checks 3,000 tickers per
+     * request, and a measurement showed the regex costing about as much as the risk computation.
+     */
+    static boolean wellFormed(String t) {
+        int n = t.length();
+        if (n < 1 || n > 32) return false;
+        for (int i = 0; i < n; i++) {
+            char c = t.charAt(i);
+            boolean ok = (c >= 'A' && c <= 'Z') || (c >= 'a' && c <= 'z') || (c >= '0' && c <= '9')
+                    || c == '.' || c == '_' || c == ':' || c == '/' || c == '-';
+            if (!ok) return false;
+        }
+        return true;
     }
 
     /** At most 100 issues are reported; a client sending 3,000 bad names needs the first ones, not all. */
