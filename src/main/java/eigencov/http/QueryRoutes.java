@@ -45,12 +45,26 @@ public final class QueryRoutes implements RouteModule {
 
     private final QueryService service;
     private final QueryResponses responses;
-    private final ObjectMapper mapper;
+    private final ObjectReader covarianceBody;
+    private final ObjectReader exposuresBody;
+    private final ObjectReader riskBody;
 
     public QueryRoutes(QueryService service, ObjectMapper mapper) {
         this.service = service;
-        this.mapper = mapper;
         this.responses = new QueryResponses(mapper);
+        this.covarianceBody = strictReader(mapper, CovarianceBody.class);
+        this.exposuresBody = strictReader(mapper, ExposuresBody.class);
+        this.riskBody = strictReader(mapper, RiskBody.class);
+    }
+
+    /**
+     * Reads a JSON body strictly: repeated keys (a ticker twice in weights) and fractional numbers
+     * for whole-number fields are errors, not silently resolved.
+     */
+    private static ObjectReader strictReader(ObjectMapper mapper, Class<?> type) {
+        return mapper.readerFor(type)
+                .with(JsonParser.Feature.STRICT_DUPLICATE_DETECTION)
+                .without(DeserializationFeature.ACCEPT_FLOAT_AS_INT);
     }
 
     /** POST /covariance body. */
@@ -87,7 +101,7 @@ public final class QueryRoutes implements RouteModule {
     private void covariancePost(Context ctx) throws IOException {
         QueryParams p = QueryParams.of(ctx.queryParamMap(), QueryParams.SELECTION);
         Representation rep = Representation.negotiate(ctx.header("Accept"), TABULAR);
-        CovarianceBody b = body(ctx, CovarianceBody.class);
+        CovarianceBody b = body(ctx, covarianceBody);
         CovarianceQuery q = new CovarianceQuery(b.tickers(), QueryParams.choice("form", b.form(), FORMS, CovarianceForm.MATRIX),
                 QueryParams.scale(b.scale(), b.horizonDays()), Boolean.TRUE.equals(b.correlation()), p.missing());
         covariance(ctx, p, rep, q);
@@ -118,7 +132,7 @@ public final class QueryRoutes implements RouteModule {
     private void exposuresPost(Context ctx) throws IOException {
         QueryParams p = QueryParams.of(ctx.queryParamMap(), QueryParams.SELECTION);
         Representation rep = Representation.negotiate(ctx.header("Accept"), TABULAR);
-        exposures(ctx, p, rep, new ExposuresQuery(body(ctx, ExposuresBody.class).tickers(), p.missing()));
+        exposures(ctx, p, rep, new ExposuresQuery(QueryRoutes.<ExposuresBody>body(ctx, exposuresBody).tickers(), p.missing()));
     }
 
     private void exposures(Context ctx, QueryParams p, Representation rep, ExposuresQuery q) {
@@ -143,7 +157,7 @@ public final class QueryRoutes implements RouteModule {
     private void risk(Context ctx) throws IOException {
         QueryParams p = QueryParams.of(ctx.queryParamMap(), QueryParams.SELECTION);
         Representation.negotiate(ctx.header("Accept"), JSON_ONLY);
-        RiskBody b = body(ctx, RiskBody.class);
+        RiskBody b = body(ctx, riskBody);
         RiskQuery q = new RiskQuery(b.weights(), b.benchmark(), QueryParams.scale(b.scale(), b.horizonDays()), p.missing());
         responses.risk(ctx, service.risk(model(ctx), p.selector(), q), riskKey(q));
     }
@@ -176,14 +190,7 @@ public final class QueryRoutes implements RouteModule {
         return m;
     }
 
-    /**
-     * Reads the JSON body strictly: repeated keys (a ticker twice in weights) and fractional
-     * numbers for whole-number fields are errors, not silently resolved.
-     */
-    private <T> T body(Context ctx, Class<T> type) throws IOException {
-        ObjectReader reader = mapper.readerFor(type)
-                .with(JsonParser.Feature.STRICT_DUPLICATE_DETECTION)
-                .without(DeserializationFeature.ACCEPT_FLOAT_AS_INT);
+    private static <T> T body(Context ctx, ObjectReader reader) throws IOException {
         // a JsonProcessingException goes to HttpApi's mapper: 400 naming the JSON path
         T value = reader.readValue(ctx.bodyAsBytes());
         if (value == null) throw ApiException.badField("body", "a JSON object is required");

@@ -2,10 +2,11 @@ package eigencov.http;
 
 import eigencov.service.FitRef;
 import io.javalin.http.Context;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
 
 import java.io.IOException;
 import java.io.OutputStream;
-import java.io.UncheckedIOException;
 import java.nio.charset.StandardCharsets;
 import java.security.MessageDigest;
 import java.security.NoSuchAlgorithmException;
@@ -25,6 +26,7 @@ import java.util.zip.GZIPOutputStream;
  * {@code X-Caution}; JSON bodies repeat them as {@code "fit"} and {@code "caution"}.
  */
 final class ResponseSender {
+    private static final Logger LOG = LoggerFactory.getLogger(ResponseSender.class);
     static final String CAUTION = "Estimates from historical returns under a statistical factor model; not investment advice.";
     /** Smaller bodies go uncompressed: below about one network buffer gzip saves little and costs a deflater. */
     static final long GZIP_MIN_BYTES = 16 * 1024;
@@ -77,7 +79,8 @@ final class ResponseSender {
                 body.writeTo(out);
             }
         } catch (IOException e) {
-            throw new UncheckedIOException("writing the response failed", e);
+            // the status line is out, so nothing more can be said to this client: it has gone away
+            LOG.debug("request {}: client went away while the answer was written: {}", ctx.attribute("requestId"), e.toString());
         }
     }
 
