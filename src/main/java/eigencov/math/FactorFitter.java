@@ -261,18 +261,26 @@ public final class FactorFitter {
         return s * s / s2;
     }
 
+    /**
+     * Weighted variance of series a, or 0 when every deviation from the mean is within rounding
+     * (1e-13 of the largest |value|): a constant series whose weighted mean differs by an ulp.
+     */
     private static double weightedVariance(double[] x, int a, int dates, double[] w) {
         int o = a * dates;
         double mu = 0;
+        double big = 0;
         for (int t = 0; t < dates; t++) {
             mu += w[t] * x[o + t];
+            big = Math.max(big, Math.abs(x[o + t]));
         }
         double v = 0;
+        double worst = 0;
         for (int t = 0; t < dates; t++) {
             double d = x[o + t] - mu;
             v += w[t] * d * d;
+            worst = Math.max(worst, Math.abs(d));
         }
-        return v;
+        return worst <= 1e-13 * big ? 0 : v;
     }
 
     /**
