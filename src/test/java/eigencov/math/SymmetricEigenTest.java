@@ -96,6 +96,26 @@ class SymmetricEigenTest {
     }
 
     @Test
+    void reduction_split_over_a_pool_gives_the_serial_result() {
+        int n = 230; // above the size where the row passes are split
+        double[] a = randomSymmetric(n, 77);
+        java.util.concurrent.ExecutorService pool = java.util.concurrent.Executors.newFixedThreadPool(2);
+        try {
+            SymmetricEigen serial = SymmetricEigen.decompose(a.clone(), n);
+            SymmetricEigen pooled = SymmetricEigen.decompose(a.clone(), n, new Parallel(pool));
+            double[] expected = ejmlEigenvalues(a, n);
+            for (int i = 0; i < n; i++) {
+                assertEquals(expected[i], pooled.eigenvalue(i), DECOMPOSITION_TOL * maxAbs(expected), "eigenvalue " + i);
+                assertEquals(serial.eigenvalue(i), pooled.eigenvalue(i), DECOMPOSITION_TOL * maxAbs(expected));
+            }
+            double[] r = residuals(a, n, pooled, pooled.leadingVectors(5), 5);
+            assertTrue(r[0] < DECOMPOSITION_TOL * maxAbs(expected) * n && r[1] < 1e-12 * n, Arrays.toString(r));
+        } finally {
+            pool.shutdownNow();
+        }
+    }
+
+    @Test
     void repeated_and_clustered_eigenvalues_give_orthonormal_vectors() {
         // A = Q diag(5,5,5,2,2,1e-14,0,...) Q' with a random orthogonal Q: exact clusters
         int n = 40;
