@@ -265,18 +265,42 @@ final class SymmetricEigen {
 
     // ---------------------------------------------------------------- eigenvalues
 
-    /** Implicit QL on (d, e), e[i] coupling i and i+1; d receives the eigenvalues (unsorted). */
+    /**
+     * Implicit QL on (d, e), e[i] coupling i and i+1; d receives the eigenvalues (unsorted).
+     * Two safeguards taken from EISPACK tql1 and LAPACK dsterf: an off-diagonal entry is negligible
+     * when it is below eps times the norm of T (absolute test, so a numerically zero block deflates
+     * instead of iterating on rounding noise), and a matrix graded with its large end at the top is
+     * reversed first (QL converges from the large end; reversal is a permutation similarity, so the
+     * eigenvalues are unchanged).
+     */
     static void qlEigenvalues(double[] d, double[] e, int n) {
         if (n > 0) {
             e[n - 1] = 0;
         }
+        if (n > 1 && Math.abs(d[0]) > Math.abs(d[n - 1])) {
+            for (int i = 0, j = n - 1; i < j; i++, j--) {
+                double t = d[i];
+                d[i] = d[j];
+                d[j] = t;
+            }
+            for (int i = 0, j = n - 2; i < j; i++, j--) {
+                double t = e[i];
+                e[i] = e[j];
+                e[j] = t;
+            }
+        }
+        double tnorm = 0;
+        for (int i = 0; i < n; i++) {
+            tnorm = Math.max(tnorm, Math.abs(d[i]) + Math.abs(e[i]));
+        }
+        double small = EPS * tnorm;
         for (int l = 0; l < n; l++) {
             int iter = 0;
             int m;
             do {
                 for (m = l; m < n - 1; m++) {
                     double dd = Math.abs(d[m]) + Math.abs(d[m + 1]);
-                    if (Math.abs(e[m]) <= EPS * dd) {
+                    if (Math.abs(e[m]) <= EPS * dd || Math.abs(e[m]) <= small) {
                         break;
                     }
                 }
