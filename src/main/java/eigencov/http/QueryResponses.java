@@ -4,6 +4,7 @@ import com.fasterxml.jackson.core.JsonEncoding;
 import com.fasterxml.jackson.core.JsonGenerator;
 import com.fasterxml.jackson.core.io.NumberOutput;
 import com.fasterxml.jackson.databind.ObjectMapper;
+import eigencov.math.ActiveRisk;
 import eigencov.math.PortfolioRisk;
 import eigencov.service.CovarianceMatrix;
 import eigencov.service.FactorForm;
@@ -190,25 +191,13 @@ final class QueryResponses {
             g.writeNumberField("specificVariance", r.specificVariance());
             if (r.trackingError() != null) g.writeNumberField("trackingError", r.trackingError());
             g.writeNumberField("betaToFirstFactor", r.betaToFirstFactor());
-            double[] x = r.factorExposures();
-            double[] fc = r.factorContributions();
-            g.writeArrayFieldStart("byFactor");
-            for (int j = 0; j < x.length; j++) {
-                g.writeStartObject();
-                g.writeNumberField("factor", j + 1);
-                g.writeNumberField("exposure", x[j]);
-                g.writeNumberField("contribution", fc[j]);
-                g.writeEndObject();
-            }
-            g.writeEndArray();
+            byFactor(g, r.factorExposures(), r.factorContributions());
             double[] w = a.weights();
             double[] mcr = r.marginal();
             double[] ccr = r.contribution();
             double[] spec = r.specificContributions();
             double[] beta = r.assetBetasToFirstFactor();
-            double specTotal = 0;
-            for (double s : spec) specTotal += s;
-            g.writeNumberField("specificContribution", specTotal);
+            g.writeNumberField("specificContribution", sum(spec));
             g.writeArrayFieldStart("byAsset");
             for (int i = 0; i < n; i++) {
                 g.writeStartObject();
@@ -221,8 +210,53 @@ final class QueryResponses {
                 g.writeEndObject();
             }
             g.writeEndArray();
+            if (r.active() != null) active(g, r.active(), a.activeTickers());
             strings(g, "omitted", a.omitted());
         });
+    }
+
+    /** Tracking error decomposed over the union of portfolio and benchmark names (active weights a = w - benchmark). */
+    private static void active(JsonGenerator g, ActiveRisk act, List<String> tickers) throws IOException {
+        g.writeObjectFieldStart("active");
+        g.writeNumberField("trackingError", act.trackingError());
+        g.writeNumberField("variance", act.variance());
+        byFactor(g, act.factorExposures(), act.factorContributions());
+        double[] aw = act.activeWeights();
+        double[] mcr = act.marginal();
+        double[] ccr = act.contribution();
+        double[] spec = act.specificContributions();
+        g.writeNumberField("specificContribution", sum(spec));
+        g.writeArrayFieldStart("byAsset");
+        for (int i = 0; i < aw.length; i++) {
+            g.writeStartObject();
+            g.writeStringField("ticker", tickers.get(i));
+            g.writeNumberField("activeWeight", aw[i]);
+            g.writeNumberField("marginal", mcr[i]);
+            g.writeNumberField("contribution", ccr[i]);
+            g.writeNumberField("specificContribution", spec[i]);
+            g.writeEndObject();
+        }
+        g.writeEndArray();
+        g.writeEndObject();
+    }
+
+    /** "byFactor": [{factor (1-based), exposure, contribution}]. */
+    private static void byFactor(JsonGenerator g, double[] exposure, double[] contribution) throws IOException {
+        g.writeArrayFieldStart("byFactor");
+        for (int j = 0; j < exposure.length; j++) {
+            g.writeStartObject();
+            g.writeNumberField("factor", j + 1);
+            g.writeNumberField("exposure", exposure[j]);
+            g.writeNumberField("contribution", contribution[j]);
+            g.writeEndObject();
+        }
+        g.writeEndArray();
+    }
+
+    private static double sum(double[] v) {
+        double s = 0;
+        for (double x : v) s += x;
+        return s;
     }
 
     // ---- JSON ----

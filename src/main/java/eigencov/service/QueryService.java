@@ -100,7 +100,11 @@ public final class QueryService {
         if (bench != null) {
             for (String t : bench.omitted()) if (!omitted.contains(t)) omitted.add(t);
         }
-        return new RiskAnswer(served.ref(), q.scale(), sel.kept(), w, omitted, risk);
+        List<String> activeTickers = new ArrayList<>();
+        if (risk.active() != null) {
+            for (int row : risk.active().indices()) activeTickers.add(served.result().model().tickers().get(row));
+        }
+        return new RiskAnswer(served.ref(), q.scale(), sel.kept(), w, omitted, risk, activeTickers);
     }
 
     private ServedFit resolve(String model, FitSelector selector) {

@@ -88,9 +88,10 @@ class RiskEndpointTest {
     }
 
     @Test
-    void risk_without_benchmark_has_no_tracking_error() {
+    void risk_without_benchmark_has_no_tracking_error_or_active_part() {
         JsonNode r = risk("toy", Map.of("weights", weights("AAA", 0.5, "BBB", 0.3, "CCC", 0.2)));
         assertFalse(r.has("trackingError"));
+        assertFalse(r.has("active"));
     }
 
     @Test
@@ -121,6 +122,36 @@ class RiskEndpointTest {
         assertEquals(vol, byAsset, ALGEBRAIC * vol);
         assertEquals(vol, byFactor + r.get("specificContribution").doubleValue(), ALGEBRAIC * vol);
         assertEquals(252, r.get("scale").get("days").asInt());
+    }
+
+    @Test
+    void active_risk_decomposes_the_tracking_error_over_portfolio_and_benchmark_names() {
+        Map<String, Double> w = weights("T0005", 0.5, "T0011", 0.3, "T0020", 0.2);
+        Map<String, Double> bench = weights("T0011", 0.4, "T0033", 0.6);
+        JsonNode r = risk("synth", Map.of("weights", w, "benchmark", bench));
+        JsonNode act = r.get("active");
+        List<String> union = List.of("T0005", "T0011", "T0020", "T0033");
+        double[] a = {0.5, 0.3 - 0.4, 0.2, -0.6};
+        double[][] c = NaiveCovariance.of(MAR, union, 1);
+        double te2 = 0;
+        for (int i = 0; i < 4; i++) for (int j = 0; j < 4; j++) te2 += a[i] * c[i][j] * a[j];
+        double te = Math.sqrt(te2);
+        assertEquals(te, r.get("trackingError").doubleValue(), ALGEBRAIC * te);
+        assertEquals(te, act.get("trackingError").doubleValue(), ALGEBRAIC * te);
+        double sum = 0;
+        for (int i = 0; i < 4; i++) {
+            JsonNode row = act.get("byAsset").get(i);
+            assertEquals(union.get(i), row.get("ticker").asText());
+            assertEquals(a[i], row.get("activeWeight").doubleValue(), 1e-15);
+            double ca = 0;
+            for (int j = 0; j < 4; j++) ca += c[i][j] * a[j];
+            assertEquals(a[i] * ca / te, row.get("contribution").doubleValue(), ALGEBRAIC * te);
+            sum += row.get("contribution").doubleValue();
+        }
+        assertEquals(te, sum, ALGEBRAIC * te);
+        double byFactor = act.get("specificContribution").doubleValue();
+        for (JsonNode f : act.get("byFactor")) byFactor += f.get("contribution").doubleValue();
+        assertEquals(te, byFactor, ALGEBRAIC * te);
     }
 
     @Test
