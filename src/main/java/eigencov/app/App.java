@@ -15,6 +15,8 @@ import eigencov.service.ModelService;
 import eigencov.service.PanelService;
 import eigencov.service.RefitScheduler;
 import eigencov.service.ServedFits;
+import eigencov.http.QueryRoutes;
+import eigencov.service.QueryService;
 import eigencov.store.Database;
 import eigencov.store.FitRepository;
 import eigencov.store.ModelRepository;
@@ -60,11 +62,23 @@ public final class App implements AutoCloseable {
 
     /** Builds everything (opening the store and migrating it) without starting the HTTP server. */
     public static App create(AppConfig config) {
-        return create(config, Clock.systemUTC());
+        return create(config, Clock.systemUTC(), null);
     }
 
     /** As {@link #create(AppConfig)}, with the clock fits and schedules are stamped by. */
     public static App create(AppConfig config, Clock clock) {
+        return create(config, clock, null);
+    }
+
+    /**
+     * As {@link #create(AppConfig)}, but the query endpoints answer from {@code queryFits} instead of
+     * this process's own fits. For callers that serve fits from elsewhere: tests and the query benchmark.
+     */
+    public static App create(AppConfig config, FitLookup queryFits) {
+        return create(config, Clock.systemUTC(), queryFits);
+    }
+
+    private static App create(AppConfig config, Clock clock, FitLookup queryFits) {
         Database db = Database.open(config.dbUrl(), config.dbUser(), config.dbPassword(), config.dbPoolSize());
         ScheduledExecutorService background = null;
         try {
@@ -81,6 +95,7 @@ public final class App implements AutoCloseable {
             PanelService panels = new PanelService(panelStore, config.maxAbsReturn(), scheduler);
             modules.add(new PanelRoutes(panels, config.maxBodyBytes(), mapper.getFactory()));
             modules.add(new ModelRoutes(modelService, fitService));
+            modules.add(new QueryRoutes(new QueryService(queryFits != null ? queryFits : served), mapper));
             Javalin http = HttpApi.create(config.bindHost(), config.port(), config.maxBodyBytes(), config.shutdownGraceMs(),
                     mapper, db::isReachable, ApiKeys.parse(config.apiKeys()), modules);
             if (config.demo()) new DemoLoader(config.demoDir(), panels, panelStore, modelService, fitService, mapper).load();

@@ -33,6 +33,8 @@ import java.util.function.BooleanSupplier;
 public final class HttpApi {
     private static final Logger LOG = LoggerFactory.getLogger("eigencov.http");
     public static final String REQUEST_ID = "X-Request-Id";
+    /** Room for response headers (Jetty's default is 8 KB). */
+    static final int RESPONSE_HEADER_BYTES = 128 * 1024;
 
     private HttpApi() {
     }
@@ -74,6 +76,8 @@ public final class HttpApi {
                 server.setStopTimeout(stopGraceMs);
                 server.setHandler(new GracefulHandler());
             });
+            // .npy answers list their row tickers in a header: 3,000 names of up to 32 characters is ~100 KB
+            config.jetty.modifyHttpConfiguration(http -> http.setResponseHeaderSize(RESPONSE_HEADER_BYTES));
             config.http.maxRequestSize = maxBodyBytes;
             config.http.defaultContentType = "application/json";
             config.jsonMapper(new JavalinJackson(mapper, false));

@@ -27,14 +27,20 @@ final class Dense {
         }
     }
 
+    /**
+     * Rows [from, to) of the lower triangle, two rows of G against four rows of M at a time, with
+     * Math.fma (the JIT emits vector FMAs): measured about 2x the plain rank-4 axpy form on this machine.
+     */
     private static void crossProductRows(double[] m, int rows, int cols, double[] g, int from, int to) {
         for (int s = from; s < to; s++) {
             java.util.Arrays.fill(g, s * cols, s * cols + s + 1, 0.0);
         }
         for (int c0 = 0; c0 < rows; c0 += CROSS_BLOCK) {
             int c1 = Math.min(rows, c0 + CROSS_BLOCK);
-            for (int s = from; s < to; s++) {
+            int s = from;
+            for (; s + 1 < to; s += 2) {
                 int go = s * cols;
+                int go1 = go + cols;
                 int n = s + 1;
                 int c = c0;
                 for (; c + 3 < c1; c += 4) {
@@ -46,15 +52,41 @@ final class Dense {
                     double a1 = m[o1 + s];
                     double a2 = m[o2 + s];
                     double a3 = m[o3 + s];
+                    double b0 = m[o0 + s + 1];
+                    double b1 = m[o1 + s + 1];
+                    double b2 = m[o2 + s + 1];
+                    double b3 = m[o3 + s + 1];
                     for (int t = 0; t < n; t++) {
-                        g[go + t] += a0 * m[o0 + t] + a1 * m[o1 + t] + a2 * m[o2 + t] + a3 * m[o3 + t];
+                        double x0 = m[o0 + t];
+                        double x1 = m[o1 + t];
+                        double x2 = m[o2 + t];
+                        double x3 = m[o3 + t];
+                        g[go + t] = Math.fma(a3, x3, Math.fma(a2, x2, Math.fma(a1, x1, Math.fma(a0, x0, g[go + t]))));
+                        g[go1 + t] = Math.fma(b3, x3, Math.fma(b2, x2, Math.fma(b1, x1, Math.fma(b0, x0,
+                                g[go1 + t]))));
                     }
+                    g[go1 + n] = Math.fma(b3, m[o3 + n], Math.fma(b2, m[o2 + n], Math.fma(b1, m[o1 + n],
+                            Math.fma(b0, m[o0 + n], g[go1 + n]))));
                 }
                 for (; c < c1; c++) {
                     int o0 = c * cols;
                     double a0 = m[o0 + s];
-                    for (int t = 0; t < n; t++) {
-                        g[go + t] += a0 * m[o0 + t];
+                    double b0 = m[o0 + s + 1];
+                    for (int t = 0; t <= n; t++) {
+                        if (t < n) {
+                            g[go + t] = Math.fma(a0, m[o0 + t], g[go + t]);
+                        }
+                        g[go1 + t] = Math.fma(b0, m[o0 + t], g[go1 + t]);
+                    }
+                }
+            }
+            for (; s < to; s++) {
+                int go = s * cols;
+                for (int c = c0; c < c1; c++) {
+                    int o0 = c * cols;
+                    double a0 = m[o0 + s];
+                    for (int t = 0; t <= s; t++) {
+                        g[go + t] = Math.fma(a0, m[o0 + t], g[go + t]);
                     }
                 }
             }
@@ -133,7 +165,7 @@ final class Dense {
                     if (f != 0) {
                         int co = j * n;
                         for (int t = 0; t < n; t++) {
-                            acc[co + t] += f * m[mo + t];
+                            acc[co + t] = Math.fma(f, m[mo + t], acc[co + t]);
                         }
                     }
                 }

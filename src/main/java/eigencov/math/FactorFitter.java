@@ -20,6 +20,8 @@ public final class FactorFitter {
     public static final int DEFAULT_EM_MAX_ITERATIONS = 200;
     /** Power steps in the first EM iteration, from a start that knows nothing about the standardised data. */
     private static final int EM_FIRST_POWER_STEPS = 3;
+    /** Tickers per block when gathering the row-major window into ticker-major rows (cache lines reused). */
+    private static final int GATHER_BLOCK = 32;
 
     private final Parallel par;
     private final double emTolerance;
@@ -89,17 +91,28 @@ public final class FactorFitter {
         for (int t = 0; t < dates; t++) {
             sqrtW[t] = Math.sqrt(w[t]);
         }
-        // ticker-major raw values, gaps filled by the weighted mean of the observed cells
+        // ticker-major raw values (blocked transpose of the admitted columns), gaps filled by the weighted
+        // mean of the observed cells
         double[] x = new double[k0 * dates];
+        for (int a0 = 0; a0 < k0; a0 += GATHER_BLOCK) {
+            int a1 = Math.min(k0, a0 + GATHER_BLOCK);
+            for (int t = 0; t < dates; t++) {
+                int row = t * cols;
+                for (int a = a0; a < a1; a++) {
+                    x[a * dates + t] = values[row + admitted[a]];
+                }
+            }
+        }
         int missing = 0;
         for (int a = 0; a < k0; a++) {
-            int col = admitted[a];
             int xo = a * dates;
+            if (counts[admitted[a]] == dates) {
+                continue;
+            }
             double sw = 0;
             double sx = 0;
             for (int t = 0; t < dates; t++) {
-                double v = values[t * cols + col];
-                x[xo + t] = v;
+                double v = x[xo + t];
                 if (!Double.isNaN(v)) {
                     sw += w[t];
                     sx += w[t] * v;
@@ -261,18 +274,26 @@ public final class FactorFitter {
         return s * s / s2;
     }
 
+    /**
+     * Weighted variance of series a, or 0 when every deviation from the mean is within rounding
+     * (1e-13 of the largest |value|): a constant series whose weighted mean differs by an ulp.
+     */
     private static double weightedVariance(double[] x, int a, int dates, double[] w) {
         int o = a * dates;
         double mu = 0;
+        double big = 0;
         for (int t = 0; t < dates; t++) {
             mu += w[t] * x[o + t];
+            big = Math.max(big, Math.abs(x[o + t]));
         }
         double v = 0;
+        double worst = 0;
         for (int t = 0; t < dates; t++) {
             double d = x[o + t] - mu;
             v += w[t] * d * d;
+            worst = Math.max(worst, Math.abs(d));
         }
-        return v;
+        return worst <= 1e-13 * big ? 0 : v;
     }
 
     /**

@@ -31,10 +31,16 @@ final class Parallel {
 
     /** Runs {@code task} on {@code parts()} equal slices of [0, n). */
     void forEqual(int n, RangeTask task) {
+        forRange(0, n, task);
+    }
+
+    /** Runs {@code task} on {@code parts()} equal slices of [from, to). */
+    void forRange(int from, int to, RangeTask task) {
+        int n = to - from;
         int p = Math.max(1, Math.min(parts, n));
         int[] bounds = new int[p + 1];
         for (int i = 0; i <= p; i++) {
-            bounds[i] = (int) ((long) n * i / p);
+            bounds[i] = from + (int) ((long) n * i / p);
         }
         run(bounds, task);
     }

@@ -58,11 +58,11 @@ public final class PcaSolver {
             Dense.transpose(m, assets, dates, x);
             double[] s = new double[assets * assets];
             Dense.crossProduct(x, dates, assets, s, par);
-            return new PcaSolver(m, assets, dates, false, SymmetricEigen.decompose(s, assets), par);
+            return new PcaSolver(m, assets, dates, false, SymmetricEigen.decompose(s, assets, par), par);
         }
         double[] g = new double[dates * dates];
         Dense.crossProduct(m, assets, dates, g, par);
-        return new PcaSolver(m, assets, dates, true, SymmetricEigen.decompose(g, dates), par);
+        return new PcaSolver(m, assets, dates, true, SymmetricEigen.decompose(g, dates, par), par);
     }
 
     /** Whether the T x T Gram route was used. */

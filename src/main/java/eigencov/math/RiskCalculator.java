@@ -98,16 +98,25 @@ public final class RiskCalculator {
         }
         Decomposition p = decompose(m, idx, weights, scale);
         int k = m.factors();
+        double[] b = m.exposuresView();
         double f11 = m.factorCov(0, 0);
+        // beta_i = B_i . (F e_1) / F_11, and the portfolio's is w'beta = (F x)_1 / F_11
+        double[] col = new double[k];
+        for (int e = 0; e < k; e++) {
+            col[e] = f11 > 0 ? m.factorCov(e, 0) / f11 : 0;
+        }
         double[] betas = new double[idx.length];
-        double beta = 0;
         for (int a = 0; a < idx.length; a++) {
+            int bo = idx[a] * k;
             double s = 0;
             for (int e = 0; e < k; e++) {
-                s += m.exposure(idx[a], e) * m.factorCov(e, 0);
+                s += b[bo + e] * col[e];
             }
-            betas[a] = f11 > 0 ? s / f11 : 0;
-            beta += weights[a] * betas[a];
+            betas[a] = s;
+        }
+        double beta = 0;
+        for (int e = 0; e < k; e++) {
+            beta += p.exposures[e] * col[e];
         }
         ActiveRisk active = null;
         Double te = null;

@@ -25,6 +25,12 @@ final class SymmetricEigen {
     /** Inverse iterations per vector: with an accurate eigenvalue one step already converges; three are a margin. */
     private static final int INVERSE_ITERATIONS = 3;
     private static final int MAX_QL_ITERATIONS = 60;
+    /**
+     * Trailing blocks smaller than this are reduced on one thread: below it a step's row pass costs
+     * less than handing half of it to another thread (measured on the benchmark shapes).
+     */
+    private static final int PARALLEL_MIN_ROWS = 160;
+    private static final Parallel SERIAL = new Parallel(null);
 
     private final int n;
     private final double[] a;
@@ -47,13 +53,18 @@ final class SymmetricEigen {
      * overwritten with the Householder vectors.
      */
     static SymmetricEigen decompose(double[] sym, int n) {
+        return decompose(sym, n, SERIAL);
+    }
+
+    /** As {@link #decompose(double[], int)}, the reduction's row passes split over {@code par}. */
+    static SymmetricEigen decompose(double[] sym, int n, Parallel par) {
         if (sym.length < n * n) {
             throw new IllegalArgumentException("matrix length " + sym.length + " < " + n + " x " + n);
         }
         double[] tau = new double[Math.max(n, 1)];
         double[] d = new double[n];
         double[] e = new double[n];
-        tridiagonalize(sym, n, tau, d, e);
+        tridiagonalize(sym, n, tau, d, e, par);
         double[] w = d.clone();
         double[] f = e.clone();
         qlEigenvalues(w, f, n);
@@ -104,6 +115,10 @@ final class SymmetricEigen {
      * {@code H_j = I - tau_j u u'}, u stored in row j (columns j+1..n-1, u[j+1] = 1).
      */
     static void tridiagonalize(double[] a, int n, double[] tau, double[] d, double[] e) {
+        tridiagonalize(a, n, tau, d, e, SERIAL);
+    }
+
+    static void tridiagonalize(double[] a, int n, double[] tau, double[] d, double[] e, Parallel par) {
         if (n == 0) {
             return;
         }
@@ -117,6 +132,10 @@ final class SymmetricEigen {
         }
         double[] p = new double[n];
         double[] w = new double[n];
+        double[][] partial = new double[par.parts()][];
+        for (int q = 1; q < partial.length; q++) {
+            partial[q] = new double[n];
+        }
         // reflector of row 0 and p = A22 u
         e[0] = house(a, 0, 1, n, tau, 0);
         d[0] = a[0];
@@ -159,25 +178,55 @@ final class SymmetricEigen {
                 e[r] = a[ro + r + 1];
             }
             // fused: update rows i > r (columns > r) and accumulate p = A u_next
-            int c0 = r + 1;
-            for (int i = r + 1; i < n; i++) {
-                int io = i * n;
-                double ui = a[uo + i];
-                double wi = w[i];
-                for (int c = c0; c < n; c++) {
-                    a[io + c] -= ui * w[c] + wi * a[uo + c];
-                }
-                if (next) {
-                    double un = a[ro + i];
-                    if (un != 0) {
-                        for (int c = c0; c < n; c++) {
-                            p[c] += un * a[io + c];
-                        }
+            if (par.parts() > 1 && n - r >= PARALLEL_MIN_ROWS) {
+                final int jj = j;
+                final boolean nx = next;
+                par.forRange(r + 1, n, (part, from, to) -> {
+                    double[] acc = part == 0 ? p : partial[part];
+                    if (part > 0) {
+                        Arrays.fill(acc, r + 1, n, 0.0);
+                    }
+                    updateRows(a, n, jj, nx, w, acc, from, to);
+                });
+                for (int q = 1; q < partial.length; q++) {
+                    double[] acc = partial[q];
+                    for (int c = r + 1; c < n; c++) {
+                        p[c] += acc[c];
                     }
                 }
+            } else {
+                updateRows(a, n, j, next, w, p, r + 1, n);
             }
             if (!next) {
                 d[n - 1] = a[(n - 1) * n + n - 1];
+            }
+        }
+    }
+
+    /**
+     * Rows [from, to) of step j: A22 -= u w' + w u' on columns > j+1, and, when {@code next}, p += u_next[i] row_i
+     * with u_next stored in row j+1. Rows are independent, so slices can run on different threads.
+     */
+    private static void updateRows(double[] a, int n, int j, boolean next, double[] w, double[] p, int from, int to) {
+        int uo = j * n;
+        int ro = (j + 1) * n;
+        int c0 = j + 2;
+        for (int i = from; i < to; i++) {
+            int io = i * n;
+            double ui = a[uo + i];
+            double wi = w[i];
+            double un = next ? a[ro + i] : 0;
+            if (un != 0) {
+                // one pass: update the row and accumulate the next product (vector FMAs)
+                for (int c = c0; c < n; c++) {
+                    double v = Math.fma(-ui, w[c], Math.fma(-wi, a[uo + c], a[io + c]));
+                    a[io + c] = v;
+                    p[c] = Math.fma(un, v, p[c]);
+                }
+            } else {
+                for (int c = c0; c < n; c++) {
+                    a[io + c] = Math.fma(-ui, w[c], Math.fma(-wi, a[uo + c], a[io + c]));
+                }
             }
         }
     }
@@ -216,18 +265,42 @@ final class SymmetricEigen {
 
     // ---------------------------------------------------------------- eigenvalues
 
-    /** Implicit QL on (d, e), e[i] coupling i and i+1; d receives the eigenvalues (unsorted). */
+    /**
+     * Implicit QL on (d, e), e[i] coupling i and i+1; d receives the eigenvalues (unsorted).
+     * Two safeguards taken from EISPACK tql1 and LAPACK dsterf: an off-diagonal entry is negligible
+     * when it is below eps times the norm of T (absolute test, so a numerically zero block deflates
+     * instead of iterating on rounding noise), and a matrix graded with its large end at the top is
+     * reversed first (QL converges from the large end; reversal is a permutation similarity, so the
+     * eigenvalues are unchanged).
+     */
     static void qlEigenvalues(double[] d, double[] e, int n) {
         if (n > 0) {
             e[n - 1] = 0;
         }
+        if (n > 1 && Math.abs(d[0]) > Math.abs(d[n - 1])) {
+            for (int i = 0, j = n - 1; i < j; i++, j--) {
+                double t = d[i];
+                d[i] = d[j];
+                d[j] = t;
+            }
+            for (int i = 0, j = n - 2; i < j; i++, j--) {
+                double t = e[i];
+                e[i] = e[j];
+                e[j] = t;
+            }
+        }
+        double tnorm = 0;
+        for (int i = 0; i < n; i++) {
+            tnorm = Math.max(tnorm, Math.abs(d[i]) + Math.abs(e[i]));
+        }
+        double small = EPS * tnorm;
         for (int l = 0; l < n; l++) {
             int iter = 0;
             int m;
             do {
                 for (m = l; m < n - 1; m++) {
                     double dd = Math.abs(d[m]) + Math.abs(d[m + 1]);
-                    if (Math.abs(e[m]) <= EPS * dd) {
+                    if (Math.abs(e[m]) <= EPS * dd || Math.abs(e[m]) <= small) {
                         break;
                     }
                 }
