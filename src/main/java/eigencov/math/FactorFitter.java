@@ -185,7 +185,8 @@ public final class FactorFitter {
         // final decomposition on the completed window
         double[] mean = new double[assets];
         double[] variance = new double[assets];
-        double[] m = new double[assets * dates];
+        // the completed raw values are not needed again: standardise in place (saves a K x T array)
+        double[] m = x;
         double[] scale = standardise(x, assets, dates, w, sqrtW, mean, variance, options.basis() == Basis.CORRELATION,
                 m);
         double trace = 0;
@@ -297,7 +298,7 @@ public final class FactorFitter {
     }
 
     /**
-     * Fills m (K x T) with sqrt(w_t) (x_ti - mu_i), divided by sigma_i when {@code standardised};
+     * Fills m (K x T; may be x itself) with sqrt(w_t) (x_ti - mu_i), divided by sigma_i when {@code standardised};
      * writes weighted means and variances S_ii. Returns the per-ticker sigma (exposure scale) for
      * the standardised case, else null. A zero sigma is treated as 1.
      */

@@ -9,8 +9,6 @@ import eigencov.math.ReturnPanel;
 import eigencov.math.RiskCalculator;
 import java.io.IOException;
 import java.lang.management.ManagementFactory;
-import java.lang.management.MemoryPoolMXBean;
-import java.lang.management.MemoryType;
 import java.nio.ByteBuffer;
 import java.nio.ByteOrder;
 import java.nio.channels.FileChannel;
@@ -47,10 +45,14 @@ public final class FitBench {
             return t;
         });
         boolean numpy = hasNumpy();
+        System.out.println("alloc MB = bytes allocated by all threads during one fit (upper bound on peak extra "
+                + "memory; the input panel itself is T x K x 8 bytes)");
         System.out.printf("eigencov fit benchmark: %d threads, %d timed fits per shape (after 2 warm-up), k = %d, "
                 + "numpy %s%n", threads, reps, K_FACTORS, numpy ? "present" : "absent");
-        System.out.printf("%-12s %10s %10s %12s %12s %12s %10s %10s%n", "T x K", "fit ms", "min ms", "peak MB",
-                "np gram ms", "np svd ms", "fit/gram", "fit/svd");
+        System.out.println("cpu ms = process CPU time per fit, all threads (less sensitive than wall time to other "
+                + "load on the machine); np cpu likewise for numpy's Gram route");
+        System.out.printf("%-12s %9s %9s %9s %9s %11s %11s %10s %9s %9s %9s%n", "T x K", "fit ms", "min ms", "cpu ms",
+                "alloc MB", "np gram ms", "np cpu ms", "np svd ms", "fit/gram", "cpu/cpu", "fit/svd");
         FactorFitter fitter = new FactorFitter(pool);
         FitOptions options = FitOptions.of(new FactorRule.Fixed(K_FACTORS), 0.9);
         FitResult keep = null;
@@ -62,6 +64,7 @@ public final class FitBench {
                 fitter.fit(panel, options, null);
             }
             double[] ms = new double[reps];
+            long cpu0 = processCpuNanos();
             for (int r = 0; r < reps; r++) {
                 long s = System.nanoTime();
                 FitResult res = fitter.fit(panel, options, null);
@@ -70,13 +73,16 @@ public final class FitBench {
                     keep = res;
                 }
             }
-            double peak = peakExtraMegabytes(() -> fitter.fit(panel, options, null));
+            double cpuMs = (processCpuNanos() - cpu0) / 1e6 / reps;
+            double peak = allocatedMegabytes(() -> fitter.fit(panel, options, null));
             double med = median(ms);
             double[] np = numpy ? numpyTimes(panel, Math.max(3, reps / 2)) : null;
-            System.out.printf("%-12s %10.1f %10.1f %12.1f %12s %12s %10s %10s%n", t + " x " + k, med,
-                    Arrays.stream(ms).min().orElse(0), peak,
-                    np == null ? "-" : String.format("%.1f", np[0]), np == null ? "-" : String.format("%.1f", np[1]),
+            System.out.printf("%-12s %9.1f %9.1f %9.1f %9.1f %11s %11s %10s %9s %9s %9s%n", t + " x " + k, med,
+                    Arrays.stream(ms).min().orElse(0), cpuMs, peak,
+                    np == null ? "-" : String.format("%.1f", np[0]), np == null ? "-" : String.format("%.1f", np[2]),
+                    np == null ? "-" : String.format("%.1f", np[1]),
                     np == null ? "-" : String.format("%.2f", med / np[0]),
+                    np == null ? "-" : String.format("%.2f", cpuMs / np[2]),
                     np == null ? "-" : String.format("%.2f", med / np[1]));
         }
         riskQueries(keep.model());
@@ -165,26 +171,23 @@ public final class FitBench {
         return n % 2 == 1 ? s[n / 2] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
     }
 
-    /** Peak heap use during one run minus the heap in use before it (after a GC): an upper bound. */
-    private static double peakExtraMegabytes(Runnable run) {
-        List<MemoryPoolMXBean> pools = new ArrayList<>();
-        for (MemoryPoolMXBean p : ManagementFactory.getMemoryPoolMXBeans()) {
-            if (p.getType() == MemoryType.HEAP) {
-                pools.add(p);
+    /**
+     * Bytes allocated by all threads (caller and pool) during one run: every array a fit creates is
+     * counted once, so this is an upper bound on the peak extra memory of the fit.
+     */
+    private static double allocatedMegabytes(Runnable run) {
+        com.sun.management.ThreadMXBean tb = (com.sun.management.ThreadMXBean) ManagementFactory.getThreadMXBean();
+        long[] ids = tb.getAllThreadIds();
+        long[] before = tb.getThreadAllocatedBytes(ids);
+        run.run();
+        long[] after = tb.getThreadAllocatedBytes(ids);
+        long sum = 0;
+        for (int i = 0; i < ids.length; i++) {
+            if (before[i] >= 0 && after[i] >= before[i]) {
+                sum += after[i] - before[i];
             }
         }
-        System.gc();
-        long before = 0;
-        for (MemoryPoolMXBean p : pools) {
-            before += p.getUsage().getUsed();
-            p.resetPeakUsage();
-        }
-        run.run();
-        long peak = 0;
-        for (MemoryPoolMXBean p : pools) {
-            peak += p.getPeakUsage().getUsed();
-        }
-        return (peak - before) / 1048576.0;
+        return sum / 1048576.0;
     }
 
     private static boolean hasNumpy() {
@@ -200,7 +203,12 @@ public final class FitBench {
         }
     }
 
-    /** numpy medians {gram + eigh + map back ms, thin svd ms} on the equal-weight demeaned matrix. */
+    private static long processCpuNanos() {
+        return ((com.sun.management.OperatingSystemMXBean) ManagementFactory.getOperatingSystemMXBean())
+                .getProcessCpuTime();
+    }
+
+    /** numpy {median gram + eigh + map back ms, median thin svd ms, gram route cpu ms per run} on the equal-weight demeaned matrix. */
     private static double[] numpyTimes(ReturnPanel panel, int reps) throws IOException, InterruptedException {
         int t = panel.rows();
         int k = panel.cols();
@@ -236,17 +244,20 @@ public final class FitBench {
                     "def med(f, n):",
                     "    f()",
                     "    ts = []",
+                    "    c0 = time.process_time()",
                     "    for _ in range(n):",
                     "        s = time.perf_counter(); f(); ts.append((time.perf_counter() - s) * 1e3)",
-                    "    return float(np.median(ts))",
-                    "print(med(gram, reps), med(svd, max(2, reps // 2)))");
+                    "    return float(np.median(ts)), (time.process_time() - c0) * 1e3 / n",
+                    "g, gc = med(gram, reps)",
+                    "print(g, med(svd, 2)[0], gc)");
             Process p = new ProcessBuilder("python3", "-c", script, file.toString()).redirectErrorStream(true).start();
             String out = new String(p.getInputStream().readAllBytes()).trim();
             if (p.waitFor() != 0) {
                 throw new IOException("numpy timing failed: " + out);
             }
             String[] parts = out.split("\\s+");
-            return new double[] {Double.parseDouble(parts[0]), Double.parseDouble(parts[1])};
+            return new double[] {Double.parseDouble(parts[0]), Double.parseDouble(parts[1]),
+                Double.parseDouble(parts[2])};
         } finally {
             Files.deleteIfExists(file);
         }

@@ -15,7 +15,15 @@ import org.junit.jupiter.params.provider.CsvSource;
  * packages (src/test/resources/reference/README.md and each dataset's SOURCE.md). We use the
  * {@code divisor_n} blocks: eigencov's equal-weight covariance divides by T (design.md section 3).
  */
+@org.junit.jupiter.api.TestInstance(org.junit.jupiter.api.TestInstance.Lifecycle.PER_CLASS)
 class ReferenceDatasetsTest {
+
+    /** Parsed once per class (one test instance): the panels are immutable and parsing dominates the run time. */
+    private final java.util.Map<String, Case> parsed = new java.util.HashMap<>();
+
+    Case load(String dataset, String file) {
+        return parsed.computeIfAbsent(dataset + "/" + file, key -> Case.of(dataset, file));
+    }
 
     /** Relative agreement asked by issue 3 and reached by a different solver (reference README: about 1e-9). */
     static final double REL = 1e-9;
@@ -45,7 +53,7 @@ class ReferenceDatasetsTest {
     @CsvSource({"eustockmarkets, returns_pseudo_dates.csv", "smallcap, returns.csv", "hedgefund2005, returns.csv",
         "synthetic_3factor, returns.csv"})
     void eigenvalues_shares_means_and_rank_match_R_and_numpy(String dataset, String file) {
-        Case c = Case.of(dataset, file);
+        Case c = load(dataset, file);
         FitResult r = fit(c, 1);
         JsonNode n = c.ref().get("divisor_n");
         double[] ev = Fixtures.doubles(n.get("eigenvalues"));
@@ -71,7 +79,7 @@ class ReferenceDatasetsTest {
     @CsvSource({"eustockmarkets, returns_pseudo_dates.csv", "smallcap, returns.csv", "hedgefund2005, returns.csv",
         "synthetic_3factor, returns.csv"})
     void specific_variances_model_covariance_and_portfolio_vols_match_R(String dataset, String file) {
-        Case c = Case.of(dataset, file);
+        Case c = load(dataset, file);
         JsonNode n = c.ref().get("divisor_n");
         int t = c.ref().get("T").asInt();
         for (int k = 1; k <= 3; k++) {
@@ -108,7 +116,7 @@ class ReferenceDatasetsTest {
     @CsvSource({"eustockmarkets, returns_pseudo_dates.csv", "smallcap, returns.csv", "hedgefund2005, returns.csv",
         "synthetic_3factor, returns.csv"})
     void eigenvectors_with_a_clear_gap_and_pc_scores_match_R_up_to_sign(String dataset, String file) {
-        Case c = Case.of(dataset, file);
+        Case c = load(dataset, file);
         int rank = c.ref().get("numerical_rank").asInt();
         int k = Math.min(rank, 10);
         FitResult r = fit(c, k);
@@ -147,7 +155,7 @@ class ReferenceDatasetsTest {
     void synthetic_three_factor_loadings_are_recovered_as_observed_by_R() {
         // synthetic_3factor/SOURCE.md: largest principal angle E_3 vs true B = 6.568 deg on this panel;
         // over 1000 re-simulations the largest angle never exceeded 7.83 deg
-        Case c = Case.of("synthetic_3factor", "returns.csv");
+        Case c = load("synthetic_3factor", "returns.csv");
         FitResult r = fit(c, 3);
         double[] b = Fixtures.matrix(Fixtures.json("synthetic_3factor", "truth.json").get("true_loadings_B"));
         double angle = Fixtures.largestPrincipalAngleDegrees(r.model().exposures(), 50, 3, b, 3);
