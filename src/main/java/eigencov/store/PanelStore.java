@@ -608,22 +608,9 @@ public final class PanelStore {
      */
     public List<LocalDate> dates(String panel, LocalDate from, LocalDate to) {
         try (Connection c = ds.getConnection()) {
-            long panelId = requirePanel(c, panel);
-            StringBuilder sql = new StringBuilder("SELECT obs_date FROM panel_date WHERE panel_id = ?");
-            if (from != null) sql.append(" AND obs_date >= ?");
-            if (to != null) sql.append(" AND obs_date <= ?");
-            sql.append(" ORDER BY obs_date");
-            try (PreparedStatement p = c.prepareStatement(sql.toString())) {
-                int i = 1;
-                p.setLong(i++, panelId);
-                if (from != null) p.setObject(i++, from);
-                if (to != null) p.setObject(i, to);
-                List<LocalDate> out = new ArrayList<>();
-                try (ResultSet rs = p.executeQuery()) {
-                    while (rs.next()) out.add(rs.getObject(1, LocalDate.class));
-                }
-                return out;
-            }
+            List<LocalDate> out = new ArrayList<>();
+            for (DateCount d : dateCounts(c, requirePanel(c, panel), from, to)) out.add(d.date());
+            return out;
         } catch (SQLException e) {
             throw failure("read dates of panel " + panel, e);
         }
