@@ -6,6 +6,8 @@ WORKDIR /src
 COPY pom.xml .
 RUN mvn -B -q dependency:go-offline
 COPY src src
+# The API contract is packaged into the jar (served at /openapi.yaml).
+COPY openapi openapi
 RUN mvn -B -q package -DskipTests
 
 FROM eclipse-temurin:17-jre
