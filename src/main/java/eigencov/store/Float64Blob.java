@@ -9,15 +9,31 @@ final class Float64Blob {
     }
 
     static byte[] encode(double[] values) {
-        ByteBuffer b = ByteBuffer.allocate(values.length * Double.BYTES).order(ByteOrder.LITTLE_ENDIAN);
-        b.asDoubleBuffer().put(values);
+        return encode(values, values.length);
+    }
+
+    /** The first {@code n} values. */
+    static byte[] encode(double[] values, int n) {
+        ByteBuffer b = ByteBuffer.allocate(n * Double.BYTES).order(ByteOrder.LITTLE_ENDIAN);
+        b.asDoubleBuffer().put(values, 0, n);
         return b.array();
     }
 
     static double[] decode(byte[] bytes) {
-        if (bytes.length % Double.BYTES != 0) throw new StoreException("float64 blob of " + bytes.length + " bytes is not a multiple of 8", null);
-        double[] out = new double[bytes.length / Double.BYTES];
-        ByteBuffer.wrap(bytes).order(ByteOrder.LITTLE_ENDIAN).asDoubleBuffer().get(out);
+        double[] out = new double[length(bytes)];
+        decode(bytes, out);
         return out;
+    }
+
+    /** Decodes into the start of {@code out} (at least as long as the blob) and returns the count. */
+    static int decode(byte[] bytes, double[] out) {
+        int n = length(bytes);
+        ByteBuffer.wrap(bytes).order(ByteOrder.LITTLE_ENDIAN).asDoubleBuffer().get(out, 0, n);
+        return n;
+    }
+
+    static int length(byte[] bytes) {
+        if (bytes.length % Double.BYTES != 0) throw new StoreException("float64 blob of " + bytes.length + " bytes is not a multiple of 8", null);
+        return bytes.length / Double.BYTES;
     }
 }

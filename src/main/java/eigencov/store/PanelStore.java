@@ -28,23 +28,25 @@ import java.util.concurrent.ConcurrentHashMap;
  * (date, ticker) order, and the point-in-time window a fit reads.
  *
  * <p>Tables: {@code panel}, {@code ticker} (symbols interned to integer ids, shared by all panels),
- * {@code panel_return(panel_id, obs_date, ticker_id, ret)}, and two indexes kept in step by every
- * upsert, {@code panel_date(panel_id, obs_date, row_count)} and {@code panel_ticker(panel_id, ticker_id)}.
+ * {@code panel_day(panel_id, obs_date, n, ticker_ids, returns)} holding one date's returns as two
+ * aligned little-endian arrays (int32 ticker ids ascending, float64 returns), and
+ * {@code panel_ticker(panel_id, ticker_id)}, kept in step by every upsert.
  *
  * <p>Methods naming a panel that does not exist throw {@link NotFoundException}, except
  * {@link #upsert}, which creates it, and {@link #panel}, which answers empty.
  */
 public final class PanelStore {
-    /** JDBC batch size for updates. */
-    private static final int BATCH = 8_192;
-    /** Rows fetched per round trip when reading back (PostgreSQL streams only with a fetch size). */
-    private static final int FETCH = 10_000;
+    /** Dates per query and per write batch when upserting (each day row is read, merged and written back). */
+    private static final int DAY_CHUNK = 64;
+    /** Day rows per round trip when reading (PostgreSQL streams only with a fetch size). */
+    private static final int FETCH_DAYS = 32;
     /**
-     * Most rows one read-back query covers. H2 materialises a whole result before the first row
-     * and spills large ones to temporary files (a 1.5M-row window took 15 s as one query), so reads
-     * go date range by date range, sized from panel_date.row_count.
+     * Returns per read query, about. H2 materialises a whole result before the first row, so long
+     * reads go date range by date range; ranges after the first are sized from the widest day seen.
      */
-    private static final int CHUNK_ROWS = 20_000;
+    private static final int CHUNK_VALUES = 250_000;
+    private static final int FIRST_CHUNK_DAYS = 16;
+    private static final int MAX_CHUNK_DAYS = 1_024;
     /** Bound parameters per IN (...) list, well below every driver's limit. */
     private static final int IN_CHUNK = 500;
     private static final int ATTEMPTS = 3;
@@ -109,158 +111,104 @@ public final class PanelStore {
         return id.getAsLong();
     }
 
+    /**
+     * Merges the batch into the panel's day rows: reads the days the batch touches (a chunk of dates
+     * per query), merges each day's ascending ticker ids with the batch's rows in one pass, and writes
+     * the merged arrays back in JDBC batches. The caller holds the panel lock and owns the transaction.
+     */
     private static UpsertCounts write(Connection c, long panelId, ReturnBatch b, int[] ids) throws SQLException {
         int nDates = b.dateCount();
         int n = b.size();
         int[] dateStart = new int[nDates + 1];
         for (int r = 0; r < n; r++) dateStart[b.dateIndex(r) + 1]++;
         for (int d = 0; d < nDates; d++) dateStart[d + 1] += dateStart[d];
+        int widest = 0;
+        for (int d = 0; d < nDates; d++) widest = Math.max(widest, dateStart[d + 1] - dateStart[d]);
 
-        boolean[] dateKnown = new boolean[nDates];
-        if (nDates > 0) {
-            try (PreparedStatement p = c.prepareStatement(
-                    "SELECT obs_date FROM panel_date WHERE panel_id = ? AND obs_date >= ? AND obs_date <= ?")) {
-                p.setLong(1, panelId);
-                p.setObject(2, b.date(0));
-                p.setObject(3, b.date(nDates - 1));
-                try (ResultSet rs = p.executeQuery()) {
-                    List<LocalDate> dates = b.dates();
+        // The batch's rows ascend by symbol, day rows by id; ids follow symbol order unless a
+        // symbol was interned after a later-sorting one, and only then must a date's rows be sorted.
+        boolean idsAscending = true;
+        for (int t = 1; t < ids.length; t++) idsAscending &= ids[t - 1] < ids[t];
+        long[] sortKeys = idsAscending ? null : new long[widest];
+        DayMerge merge = new DayMerge(widest);
+        List<LocalDate> dates = b.dates();
+        long updated = 0;
+        try (PreparedStatement sel = c.prepareStatement("SELECT obs_date, n, ticker_ids, returns FROM panel_day "
+                + "WHERE panel_id = ? AND obs_date IN (" + placeholders(DAY_CHUNK) + ")");
+             PreparedStatement ins = c.prepareStatement(
+                     "INSERT INTO panel_day (panel_id, obs_date, n, ticker_ids, returns) VALUES (?, ?, ?, ?, ?)");
+             PreparedStatement upd = c.prepareStatement(
+                     "UPDATE panel_day SET n = ?, ticker_ids = ?, returns = ? WHERE panel_id = ? AND obs_date = ?")) {
+            Day[] stored = new Day[DAY_CHUNK];
+            for (int from = 0; from < nDates; from += DAY_CHUNK) {
+                int to = Math.min(nDates, from + DAY_CHUNK);
+                Arrays.fill(stored, null);
+                sel.setLong(1, panelId);
+                // A short last chunk repeats its last date, so one statement serves every chunk.
+                for (int i = 0; i < DAY_CHUNK; i++) sel.setObject(2 + i, b.date(Math.min(from + i, to - 1)));
+                try (ResultSet rs = sel.executeQuery()) {
                     while (rs.next()) {
-                        int d = Collections.binarySearch(dates, rs.getObject(1, LocalDate.class));
-                        if (d >= 0) dateKnown[d] = true;
+                        Day day = Day.of(rs);
+                        stored[Collections.binarySearch(dates, day.date()) - from] = day;
                     }
                 }
+                boolean inserts = false;
+                boolean updates = false;
+                for (int d = from; d < to; d++) {
+                    merge.fresh(b, ids, dateStart[d], dateStart[d + 1], sortKeys);
+                    Day old = stored[d - from];
+                    if (old == null) {
+                        ins.setLong(1, panelId);
+                        ins.setObject(2, b.date(d));
+                        ins.setInt(3, merge.size());
+                        ins.setBytes(4, merge.idBytes());
+                        ins.setBytes(5, merge.valueBytes());
+                        ins.addBatch();
+                        inserts = true;
+                    } else {
+                        updated += merge.into(old.ids(), old.values());
+                        upd.setInt(1, merge.size());
+                        upd.setBytes(2, merge.idBytes());
+                        upd.setBytes(3, merge.valueBytes());
+                        upd.setLong(4, panelId);
+                        upd.setObject(5, b.date(d));
+                        upd.addBatch();
+                        updates = true;
+                    }
+                }
+                if (inserts) ins.executeBatch();
+                if (updates) upd.executeBatch();
             }
         }
+        addPanelTickers(c, panelId, ids);
+        return new UpsertCounts(n - updated, updated);
+    }
 
-        // Which rows exist already: only dates the panel holds can have them, one short scan each.
-        boolean[] exists = new boolean[n];
+    /** Adds to panel_ticker those of {@code ids} the panel does not hold yet. */
+    private static void addPanelTickers(Connection c, long panelId, int[] ids) throws SQLException {
         int maxId = 0;
         for (int id : ids) maxId = Math.max(maxId, id);
-        int[] localOfId = new int[maxId + 1];
-        Arrays.fill(localOfId, -1);
-        for (int t = 0; t < ids.length; t++) localOfId[ids[t]] = t;
-        long updated = 0;
-        try (PreparedStatement p = c.prepareStatement("SELECT ticker_id FROM panel_return WHERE panel_id = ? AND obs_date = ?")) {
-            for (int d = 0; d < nDates; d++) {
-                if (!dateKnown[d]) continue;
-                p.setLong(1, panelId);
-                p.setObject(2, b.date(d));
-                try (ResultSet rs = p.executeQuery()) {
-                    while (rs.next()) {
-                        int id = rs.getInt(1);
-                        int local = id < localOfId.length ? localOfId[id] : -1;
-                        if (local < 0) continue;
-                        int r = findTicker(b, dateStart[d], dateStart[d + 1], local);
-                        if (r >= 0) {
-                            exists[r] = true;
-                            updated++;
-                        }
-                    }
-                }
-            }
-        }
-
-        int[] insertedOnDate = new int[nDates];
-        // New rows go in one INSERT ... SELECT FROM UNNEST(ids, values) per date: measured on H2 at
-        // about twice the rows per CPU-second of a JDBC batch of single-row INSERTs (scripts/bench-ingest).
-        try (PreparedStatement ins = c.prepareStatement("INSERT INTO panel_return (panel_id, obs_date, ticker_id, ret) "
-                + "SELECT ?, ?, u.t, u.r FROM UNNEST(?, ?) AS u(t, r)");
-             PreparedStatement upd = c.prepareStatement(
-                     "UPDATE panel_return SET ret = ? WHERE panel_id = ? AND obs_date = ? AND ticker_id = ?")) {
-            int pendingUpd = 0;
-            for (int d = 0; d < nDates; d++) {
-                LocalDate date = b.date(d);
-                int from = dateStart[d];
-                int to = dateStart[d + 1];
-                int fresh = 0;
-                for (int r = from; r < to; r++) if (!exists[r]) fresh++;
-                Integer[] newIds = new Integer[fresh];
-                Double[] newValues = new Double[fresh];
-                int j = 0;
-                for (int r = from; r < to; r++) {
-                    int id = ids[b.tickerIndex(r)];
-                    if (!exists[r]) {
-                        newIds[j] = id;
-                        newValues[j++] = b.value(r);
-                        continue;
-                    }
-                    upd.setDouble(1, b.value(r));
-                    upd.setLong(2, panelId);
-                    upd.setObject(3, date);
-                    upd.setInt(4, id);
-                    upd.addBatch();
-                    if (++pendingUpd == BATCH) {
-                        upd.executeBatch();
-                        pendingUpd = 0;
-                    }
-                }
-                if (fresh > 0) {
-                    ins.setLong(1, panelId);
-                    ins.setObject(2, date);
-                    ins.setArray(3, c.createArrayOf("INTEGER", newIds));
-                    ins.setArray(4, c.createArrayOf("DOUBLE PRECISION", newValues));
-                    ins.executeUpdate();
-                    insertedOnDate[d] = fresh;
-                }
-            }
-            if (pendingUpd > 0) upd.executeBatch();
-        }
-
-        try (PreparedStatement ins = c.prepareStatement("INSERT INTO panel_date (panel_id, obs_date, row_count) VALUES (?, ?, ?)");
-             PreparedStatement upd = c.prepareStatement(
-                     "UPDATE panel_date SET row_count = row_count + ? WHERE panel_id = ? AND obs_date = ?")) {
-            for (int d = 0; d < nDates; d++) {
-                if (!dateKnown[d]) {
-                    ins.setLong(1, panelId);
-                    ins.setObject(2, b.date(d));
-                    ins.setInt(3, insertedOnDate[d]);
-                    ins.addBatch();
-                } else if (insertedOnDate[d] > 0) {
-                    upd.setInt(1, insertedOnDate[d]);
-                    upd.setLong(2, panelId);
-                    upd.setObject(3, b.date(d));
-                    upd.addBatch();
-                }
-            }
-            ins.executeBatch();
-            upd.executeBatch();
-        }
-
-        boolean[] tickerKnown = new boolean[ids.length];
+        boolean[] known = new boolean[maxId + 1];
         try (PreparedStatement p = c.prepareStatement("SELECT ticker_id FROM panel_ticker WHERE panel_id = ?")) {
             p.setLong(1, panelId);
             try (ResultSet rs = p.executeQuery()) {
                 while (rs.next()) {
                     int id = rs.getInt(1);
-                    if (id < localOfId.length && localOfId[id] >= 0) tickerKnown[localOfId[id]] = true;
+                    if (id <= maxId) known[id] = true;
                 }
             }
         }
         try (PreparedStatement p = c.prepareStatement("INSERT INTO panel_ticker (panel_id, ticker_id) VALUES (?, ?)")) {
-            for (int t = 0; t < ids.length; t++) {
-                if (tickerKnown[t]) continue;
+            boolean any = false;
+            for (int id : ids) {
+                if (known[id]) continue;
                 p.setLong(1, panelId);
-                p.setInt(2, ids[t]);
+                p.setInt(2, id);
                 p.addBatch();
+                any = true;
             }
-            p.executeBatch();
+            if (any) p.executeBatch();
         }
-        return new UpsertCounts(n - updated, updated);
-    }
-
-    /** Row in [from, to) of the batch holding ticker {@code local} (rows there ascend by ticker), or -1. */
-    private static int findTicker(ReturnBatch b, int from, int to, int local) {
-        int lo = from;
-        int hi = to - 1;
-        while (lo <= hi) {
-            int mid = (lo + hi) >>> 1;
-            int t = b.tickerIndex(mid);
-            if (t < local) lo = mid + 1;
-            else if (t > local) hi = mid - 1;
-            else return mid;
-        }
-        return -1;
     }
 
     /**
@@ -356,8 +304,8 @@ public final class PanelStore {
             }
         }
         List<PanelSummary> out = new ArrayList<>();
-        try (PreparedStatement p = c.prepareStatement("SELECT p.id, p.name, COUNT(d.obs_date), COALESCE(SUM(d.row_count), 0), "
-                + "MIN(d.obs_date), MAX(d.obs_date) FROM panel p LEFT JOIN panel_date d ON d.panel_id = p.id"
+        try (PreparedStatement p = c.prepareStatement("SELECT p.id, p.name, COUNT(d.obs_date), COALESCE(SUM(d.n), 0), "
+                + "MIN(d.obs_date), MAX(d.obs_date) FROM panel p LEFT JOIN panel_day d ON d.panel_id = p.id"
                 + where + " GROUP BY p.id, p.name ORDER BY p.name")) {
             if (only != null) p.setString(1, only);
             try (ResultSet rs = p.executeQuery()) {
@@ -374,7 +322,7 @@ public final class PanelStore {
 
     /**
      * Streams the panel's returns to {@code sink} in date order and, within a date, ticker order.
-     * Only one date's rows are held in memory at a time.
+     * Only a bounded chunk of dates is held in memory at a time.
      *
      * @param tickers only these tickers (empty = all); symbols the panel lacks are skipped
      * @param from    first date, inclusive ({@code null} = open)
@@ -387,75 +335,114 @@ public final class PanelStore {
             snapshot(c);
             long panelId = requirePanel(c, panel);
             PanelTickers pt = panelTickers(c, panelId);
-            List<Integer> wanted = new ArrayList<>();
-            for (String s : tickers) {
-                Integer id = pt.idOf.get(s);
-                if (id != null) wanted.add(id);
-            }
-            if (!tickers.isEmpty() && wanted.isEmpty()) return;
-            String sql = "SELECT obs_date, ticker_id, ret FROM panel_return WHERE panel_id = ? AND obs_date >= ? AND obs_date <= ?"
-                    + (wanted.isEmpty() ? "" : " AND ticker_id IN (" + placeholders(wanted.size()) + ")") + " ORDER BY obs_date";
-            List<DateCount> dates = dateCounts(c, panelId, from, to);
-            DateOrder order = new DateOrder(pt, sink);
-            try (PreparedStatement p = c.prepareStatement(sql)) {
-                p.setFetchSize(FETCH);
-                for (LocalDate[] range : chunks(dates)) {
-                    int i = 1;
-                    p.setLong(i++, panelId);
-                    p.setObject(i++, range[0]);
-                    p.setObject(i++, range[1]);
-                    for (int id : wanted) p.setInt(i++, id);
-                    try (ResultSet rs = p.executeQuery()) {
-                        while (rs.next()) order.add(rs.getObject(1, LocalDate.class), rs.getInt(2), rs.getDouble(3));
+            boolean[] wanted = null;
+            if (!tickers.isEmpty()) {
+                wanted = new boolean[pt.rankOfId.length];
+                boolean any = false;
+                for (String s : tickers) {
+                    Integer id = pt.idOf.get(s);
+                    if (id != null) {
+                        wanted[id] = true;
+                        any = true;
                     }
                 }
+                if (!any) return;
             }
-            order.flush();
+            SymbolOrder order = new SymbolOrder(pt, wanted, sink);
+            readDays(c, panelId, dateList(c, panelId, from, to), order::emit);
         } catch (SQLException e) {
             throw failure("read panel " + panel, e);
         }
     }
 
-    /** Buffers the rows of one date, then hands them to the sink in ticker order. */
-    private static final class DateOrder {
+    /** Hands one day's rows (the wanted tickers, or all) to the sink in ticker symbol order. */
+    private static final class SymbolOrder {
         private final PanelTickers pt;
+        private final boolean[] wanted;
         private final ReturnSink sink;
         private final double[] valueOfRank;
-        private final int[] ranks;
-        private int count;
-        private LocalDate current;
+        private int[] ids = new int[0];
+        private double[] values = new double[0];
+        private int[] ranks = new int[0];
 
-        DateOrder(PanelTickers pt, ReturnSink sink) {
+        SymbolOrder(PanelTickers pt, boolean[] wanted, ReturnSink sink) {
             this.pt = pt;
+            this.wanted = wanted;
             this.sink = sink;
             this.valueOfRank = new double[pt.symbolsByRank.length];
-            this.ranks = new int[pt.symbolsByRank.length];
         }
 
-        void add(LocalDate date, int tickerId, double value) throws IOException {
-            if (!date.equals(current)) {
-                flush();
-                current = date;
+        void emit(Day day) throws IOException {
+            if (ids.length < day.n()) {
+                ids = new int[day.n()];
+                values = new double[day.n()];
+                ranks = new int[day.n()];
             }
-            int rank = pt.rankOfId[tickerId];
-            valueOfRank[rank] = value;
-            ranks[count++] = rank;
-        }
-
-        void flush() throws IOException {
+            Int32Blob.decode(day.ids(), ids);
+            Float64Blob.decode(day.values(), values);
+            int count = 0;
+            for (int i = 0; i < day.n(); i++) {
+                if (wanted != null && !wanted[ids[i]]) continue;
+                int rank = pt.rankOfId[ids[i]];
+                valueOfRank[rank] = values[i];
+                ranks[count++] = rank;
+            }
             Arrays.sort(ranks, 0, count);
-            for (int j = 0; j < count; j++) sink.accept(current, pt.symbolsByRank[ranks[j]], valueOfRank[ranks[j]]);
-            count = 0;
+            for (int j = 0; j < count; j++) sink.accept(day.date(), pt.symbolsByRank[ranks[j]], valueOfRank[ranks[j]]);
         }
     }
 
-    /** One date of a panel and how many rows it holds. */
-    private record DateCount(LocalDate date, int rows) {
+    /** One stored panel day: its date and its n returns, still encoded. */
+    private record Day(LocalDate date, int n, byte[] ids, byte[] values) {
+        /** The current row of a result selecting obs_date, n, ticker_ids, returns (in that order). */
+        static Day of(ResultSet rs) throws SQLException {
+            Day d = new Day(rs.getObject(1, LocalDate.class), rs.getInt(2), rs.getBytes(3), rs.getBytes(4));
+            if (Int32Blob.length(d.ids) != d.n || Float64Blob.length(d.values) != d.n) {
+                throw new StoreException("panel day " + d.date + " is inconsistent: n = " + d.n + ", " + d.ids.length
+                        + " id bytes, " + d.values.length + " return bytes", null);
+            }
+            return d;
+        }
     }
 
-    /** The panel's dates in [from, to] (null = open) with their row counts, ascending. */
-    private static List<DateCount> dateCounts(Connection c, long panelId, LocalDate from, LocalDate to) throws SQLException {
-        StringBuilder sql = new StringBuilder("SELECT obs_date, row_count FROM panel_date WHERE panel_id = ?");
+    @FunctionalInterface
+    private interface DayVisitor<E extends Exception> {
+        void visit(Day day) throws E;
+    }
+
+    /**
+     * Reads the day rows of {@code dates} (ascending, each held by the panel) in date order, one
+     * date range per query. The first range is short; later ones are sized from the widest day seen
+     * to about CHUNK_VALUES returns, so memory stays bounded however long the panel is.
+     */
+    private static <E extends Exception> void readDays(Connection c, long panelId, List<LocalDate> dates, DayVisitor<E> visitor)
+            throws SQLException, E {
+        try (PreparedStatement p = c.prepareStatement("SELECT obs_date, n, ticker_ids, returns FROM panel_day "
+                + "WHERE panel_id = ? AND obs_date >= ? AND obs_date <= ? ORDER BY obs_date")) {
+            p.setFetchSize(FETCH_DAYS);
+            int chunk = FIRST_CHUNK_DAYS;
+            for (int from = 0; from < dates.size(); ) {
+                int to = Math.min(dates.size(), from + chunk);
+                p.setLong(1, panelId);
+                p.setObject(2, dates.get(from));
+                p.setObject(3, dates.get(to - 1));
+                int widest = 1;
+                try (ResultSet rs = p.executeQuery()) {
+                    while (rs.next()) {
+                        Day day = Day.of(rs);
+                        widest = Math.max(widest, day.n());
+                        visitor.visit(day);
+                    }
+                }
+                from = to;
+                chunk = Math.max(1, Math.min(MAX_CHUNK_DAYS, CHUNK_VALUES / widest));
+            }
+        }
+    }
+
+    /** The panel's dates in [from, to] (null = open), ascending: read from the primary key alone. */
+    private static List<LocalDate> dateList(Connection c, long panelId, LocalDate from, LocalDate to) throws SQLException {
+        StringBuilder sql = new StringBuilder("SELECT obs_date FROM panel_day WHERE panel_id = ?");
         if (from != null) sql.append(" AND obs_date >= ?");
         if (to != null) sql.append(" AND obs_date <= ?");
         sql.append(" ORDER BY obs_date");
@@ -464,29 +451,12 @@ public final class PanelStore {
             p.setLong(i++, panelId);
             if (from != null) p.setObject(i++, from);
             if (to != null) p.setObject(i, to);
-            List<DateCount> out = new ArrayList<>();
+            List<LocalDate> out = new ArrayList<>();
             try (ResultSet rs = p.executeQuery()) {
-                while (rs.next()) out.add(new DateCount(rs.getObject(1, LocalDate.class), rs.getInt(2)));
+                while (rs.next()) out.add(rs.getObject(1, LocalDate.class));
             }
             return out;
         }
-    }
-
-    /** Consecutive runs of dates holding at most CHUNK_ROWS rows each (a bigger single date is its own run). */
-    private static List<LocalDate[]> chunks(List<DateCount> dates) {
-        List<LocalDate[]> out = new ArrayList<>();
-        int start = 0;
-        long rows = 0;
-        for (int i = 0; i < dates.size(); i++) {
-            if (i > start && rows + dates.get(i).rows() > CHUNK_ROWS) {
-                out.add(new LocalDate[] {dates.get(start).date(), dates.get(i - 1).date()});
-                start = i;
-                rows = 0;
-            }
-            rows += dates.get(i).rows();
-        }
-        if (start < dates.size()) out.add(new LocalDate[] {dates.get(start).date(), dates.get(dates.size() - 1).date()});
-        return out;
     }
 
     /**
@@ -503,81 +473,58 @@ public final class PanelStore {
         try (Connection c = ds.getConnection()) {
             snapshot(c);
             long panelId = requirePanel(c, panel);
-            List<DateCount> dates = new ArrayList<>(Math.min(windowDays, 10_000));
-            try (PreparedStatement p = c.prepareStatement("SELECT obs_date, row_count FROM panel_date WHERE panel_id = ? AND obs_date <= ? "
+            List<LocalDate> dates = new ArrayList<>(Math.min(windowDays, 10_000));
+            try (PreparedStatement p = c.prepareStatement("SELECT obs_date FROM panel_day WHERE panel_id = ? AND obs_date <= ? "
                     + "ORDER BY obs_date DESC FETCH FIRST ? ROWS ONLY")) {
                 p.setLong(1, panelId);
                 p.setObject(2, asOf);
                 p.setInt(3, windowDays);
                 try (ResultSet rs = p.executeQuery()) {
-                    while (rs.next()) dates.add(new DateCount(rs.getObject(1, LocalDate.class), rs.getInt(2)));
+                    while (rs.next()) dates.add(rs.getObject(1, LocalDate.class));
                 }
             }
             if (dates.isEmpty()) return new ReturnPanel(List.of(), List.of(), new double[0]);
             Collections.reverse(dates);
-            return readWindow(c, panelId, dates);
+            List<Day> days = new ArrayList<>(dates.size());
+            readDays(c, panelId, dates, days::add);
+            return toPanel(dates, days, panelTickers(c, panelId));
         } catch (SQLException e) {
             throw failure("load window of panel " + panel, e);
         }
     }
 
-    private static ReturnPanel readWindow(Connection c, long panelId, List<DateCount> window) throws SQLException {
-        List<LocalDate> dates = new ArrayList<>(window.size());
-        long expectedRows = 0;
-        for (DateCount d : window) {
-            dates.add(d.date());
-            expectedRows += d.rows();
+    /** Decodes the window's days straight into a T x K row-major panel over the tickers seen in them. */
+    private static ReturnPanel toPanel(List<LocalDate> dates, List<Day> days, PanelTickers pt) {
+        int widest = 0;
+        for (Day d : days) widest = Math.max(widest, d.n());
+        int[] ids = new int[widest];
+        double[] values = new double[widest];
+        boolean[] seen = new boolean[pt.rankOfId.length];
+        for (Day d : days) {
+            Int32Blob.decode(d.ids(), ids);
+            for (int i = 0; i < d.n(); i++) seen[ids[i]] = true;
         }
-        int cap = (int) Math.min(Integer.MAX_VALUE - 8, Math.max(16, expectedRows));
-        int[] rowOf = new int[cap];
-        int[] idOf = new int[cap];
-        double[] valueOf = new double[cap];
-        int n = 0;
-        int maxId = 0;
-        // One short query per date: the row is known, so no date is decoded per value, and no
-        // result is large enough for H2 to spill it to disk.
-        try (PreparedStatement p = c.prepareStatement("SELECT ticker_id, ret FROM panel_return WHERE panel_id = ? AND obs_date = ?")) {
-            p.setFetchSize(FETCH);
-            for (int t = 0; t < dates.size(); t++) {
-                p.setLong(1, panelId);
-                p.setObject(2, dates.get(t));
-                try (ResultSet rs = p.executeQuery()) {
-                    while (rs.next()) {
-                        if (n == rowOf.length) {
-                            int grown = rowOf.length + (rowOf.length >> 1);
-                            rowOf = Arrays.copyOf(rowOf, grown);
-                            idOf = Arrays.copyOf(idOf, grown);
-                            valueOf = Arrays.copyOf(valueOf, grown);
-                        }
-                        rowOf[n] = t;
-                        int id = rs.getInt(1);
-                        idOf[n] = id;
-                        maxId = Math.max(maxId, id);
-                        valueOf[n] = rs.getDouble(2);
-                        n++;
-                    }
-                }
-            }
-        }
-
-        PanelTickers pt = panelTickers(c, panelId);
-        boolean[] seen = new boolean[maxId + 1];
-        for (int i = 0; i < n; i++) seen[idOf[i]] = true;
         // Columns in ticker order: walk the panel's tickers by rank and keep those seen.
-        int[] colOfId = new int[maxId + 1];
+        int[] colOfId = new int[seen.length];
         List<String> tickers = new ArrayList<>();
         for (int rank = 0; rank < pt.symbolsByRank.length; rank++) {
             int id = pt.idsByRank[rank];
-            if (id <= maxId && seen[id]) {
+            if (seen[id]) {
                 colOfId[id] = tickers.size();
                 tickers.add(pt.symbolsByRank[rank]);
             }
         }
         int k = tickers.size();
-        double[] values = new double[dates.size() * k];
-        Arrays.fill(values, Double.NaN);
-        for (int i = 0; i < n; i++) values[rowOf[i] * k + colOfId[idOf[i]]] = valueOf[i];
-        return new ReturnPanel(dates, tickers, values);
+        double[] panel = new double[days.size() * k];
+        Arrays.fill(panel, Double.NaN);
+        for (int t = 0; t < days.size(); t++) {
+            Day d = days.get(t);
+            Int32Blob.decode(d.ids(), ids);
+            Float64Blob.decode(d.values(), values);
+            int row = t * k;
+            for (int i = 0; i < d.n(); i++) panel[row + colOfId[ids[i]]] = values[i];
+        }
+        return new ReturnPanel(dates, tickers, panel);
     }
 
     /**
@@ -588,11 +535,11 @@ public final class PanelStore {
     public Optional<LocalDate> lastDate(String panel) {
         try (Connection c = ds.getConnection()) {
             long panelId = requirePanel(c, panel);
-            try (PreparedStatement p = c.prepareStatement("SELECT MAX(obs_date) FROM panel_date WHERE panel_id = ?")) {
+            try (PreparedStatement p = c.prepareStatement(
+                    "SELECT obs_date FROM panel_day WHERE panel_id = ? ORDER BY obs_date DESC FETCH FIRST 1 ROWS ONLY")) {
                 p.setLong(1, panelId);
                 try (ResultSet rs = p.executeQuery()) {
-                    rs.next();
-                    return Optional.ofNullable(rs.getObject(1, LocalDate.class));
+                    return rs.next() ? Optional.of(rs.getObject(1, LocalDate.class)) : Optional.empty();
                 }
             }
         } catch (SQLException e) {
@@ -602,15 +549,13 @@ public final class PanelStore {
 
     /**
      * The panel's distinct dates in [from, to], ascending; either bound may be {@code null} (open).
-     * Reads only the per-date index, never the returns.
+     * Reads only the primary key, never the returns.
      *
      * @throws NotFoundException when the panel does not exist
      */
     public List<LocalDate> dates(String panel, LocalDate from, LocalDate to) {
         try (Connection c = ds.getConnection()) {
-            List<LocalDate> out = new ArrayList<>();
-            for (DateCount d : dateCounts(c, requirePanel(c, panel), from, to)) out.add(d.date());
-            return out;
+            return dateList(c, requirePanel(c, panel), from, to);
         } catch (SQLException e) {
             throw failure("read dates of panel " + panel, e);
         }

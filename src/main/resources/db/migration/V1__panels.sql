@@ -10,26 +10,21 @@ CREATE TABLE ticker (
     symbol  VARCHAR(32) NOT NULL UNIQUE
 );
 
--- No foreign keys here: only PanelStore writes this table, with ids it has just read from panel
--- and ticker, and the two checks per row cost about a third of the ingest time on H2 (measured).
-CREATE TABLE panel_return (
-    panel_id   BIGINT NOT NULL,
-    obs_date   DATE NOT NULL,
-    ticker_id  INT NOT NULL,
-    ret        DOUBLE PRECISION NOT NULL,
-    PRIMARY KEY (panel_id, obs_date, ticker_id)
-);
-
--- The dates of each panel with their row counts, and the tickers each panel holds. Ingest keeps
--- both in step with panel_return inside the same transaction, so that window selection (the last
--- N dates <= asOf), panel summaries and read-back never have to scan panel_return to find them.
-CREATE TABLE panel_date (
-    panel_id   BIGINT NOT NULL REFERENCES panel (id),
-    obs_date   DATE NOT NULL,
-    row_count  INT NOT NULL,
+-- One row per (panel, date) holding that date's n returns: ticker_ids is n int32 little-endian,
+-- strictly ascending; returns is n float64 little-endian, aligned with ticker_ids. A row per
+-- return cost H2 tens of microseconds each to insert and to read; a day row is one key lookup and
+-- two array copies. n lets summaries count rows without opening the arrays.
+CREATE TABLE panel_day (
+    panel_id    BIGINT NOT NULL REFERENCES panel (id),
+    obs_date    DATE NOT NULL,
+    n           INT NOT NULL,
+    ticker_ids  BYTEA NOT NULL,
+    returns     BYTEA NOT NULL,
     PRIMARY KEY (panel_id, obs_date)
 );
 
+-- The tickers each panel holds, kept in step with panel_day by every upsert in the same
+-- transaction, so that summaries and symbol lookups never open the day arrays.
 CREATE TABLE panel_ticker (
     panel_id   BIGINT NOT NULL REFERENCES panel (id),
     ticker_id  INT NOT NULL REFERENCES ticker (id),
