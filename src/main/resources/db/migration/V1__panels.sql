@@ -23,6 +23,11 @@ CREATE TABLE panel_day (
     PRIMARY KEY (panel_id, obs_date)
 );
 
+-- Summaries (dates, rows, first and last date) read this covering index, not the day rows: H2
+-- keeps a row's arrays inline, so counting through the table would read every array (measured: a
+-- cold summary of 1,000 days x 3,000 tickers took 0.6 s without it, 0.2 s with it).
+CREATE INDEX panel_day_counts ON panel_day (panel_id, obs_date, n);
+
 -- The tickers each panel holds, kept in step with panel_day by every upsert in the same
 -- transaction, so that summaries and symbol lookups never open the day arrays.
 CREATE TABLE panel_ticker (
