@@ -28,6 +28,7 @@ import org.slf4j.LoggerFactory;
 import java.time.Clock;
 import java.util.ArrayList;
 import java.util.List;
+import java.util.concurrent.ExecutorService;
 import java.util.concurrent.Executors;
 import java.util.concurrent.ScheduledExecutorService;
 import java.util.concurrent.TimeUnit;
@@ -56,9 +57,16 @@ public final class App implements AutoCloseable {
         this.fits = fits;
     }
 
-    /** The fit side of the wiring: serving snapshots, fitting, scheduling, and their background threads. */
-    private record Fits(ServedFits served, RefitScheduler scheduler, ScheduledExecutorService background) {
+    /**
+     * The fit side of the wiring: serving snapshots, fitting, scheduling, their background threads, and the
+     * pool the fitter splits its kernels over.
+     */
+    private record Fits(ServedFits served, RefitScheduler scheduler, ScheduledExecutorService background,
+                        ExecutorService kernels) {
     }
+
+    /** Threads the fitter's kernels (Gram product, tridiagonalisation, EM products) are split over: the machine's 2 cores. */
+    static final int FIT_THREADS = 2;
 
     /** Builds everything (opening the store and migrating it) without starting the HTTP server. */
     public static App create(AppConfig config) {
@@ -81,6 +89,7 @@ public final class App implements AutoCloseable {
     private static App create(AppConfig config, Clock clock, FitLookup queryFits) {
         Database db = Database.open(config.dbUrl(), config.dbUser(), config.dbPassword(), config.dbPoolSize());
         ScheduledExecutorService background = null;
+        ExecutorService kernels = null;
         try {
             ObjectMapper mapper = HttpApi.objectMapper();
             List<RouteModule> modules = new ArrayList<>();
@@ -88,7 +97,9 @@ public final class App implements AutoCloseable {
             ModelRepository modelRepo = new ModelRepository(db.dataSource());
             FitRepository fitRepo = new FitRepository(db.dataSource());
             ServedFits served = new ServedFits(fitRepo, modelRepo, new FitCodec(mapper));
-            FitService fitService = new FitService(modelRepo, fitRepo, panelStore, served, new FitCodec(mapper), new FactorFitter(null), mapper, clock);
+            // one pool shared by every fit: the calling thread runs one part of each kernel and the pool the rest
+            kernels = Executors.newFixedThreadPool(FIT_THREADS, daemonThreads("eigencov-fit-"));
+            FitService fitService = new FitService(modelRepo, fitRepo, panelStore, served, new FitCodec(mapper), new FactorFitter(kernels), mapper, clock);
             ModelService modelService = new ModelService(modelRepo, fitRepo, panelStore, served, mapper, clock);
             background = Executors.newScheduledThreadPool(2, daemonThreads("eigencov-refit-"));
             RefitScheduler scheduler = new RefitScheduler(modelRepo, fitRepo, fitService, background, clock, RefitScheduler.DEFAULT_TICK);
@@ -99,9 +110,10 @@ public final class App implements AutoCloseable {
             Javalin http = HttpApi.create(config.bindHost(), config.port(), config.maxBodyBytes(), config.shutdownGraceMs(),
                     mapper, db::isReachable, ApiKeys.parse(config.apiKeys()), modules);
             if (config.demo()) new DemoLoader(config.demoDir(), panels, panelStore, modelService, fitService, mapper).load();
-            return new App(config, db, http, new Fits(served, scheduler, background));
+            return new App(config, db, http, new Fits(served, scheduler, background, kernels));
         } catch (RuntimeException e) {
             if (background != null) background.shutdownNow();
+            if (kernels != null) kernels.shutdownNow();
             db.close();
             throw e;
         }
@@ -173,6 +185,8 @@ public final class App implements AutoCloseable {
         } catch (InterruptedException e) {
             Thread.currentThread().interrupt();
         }
+        // after the fits that use it have stopped
+        fits.kernels().shutdownNow();
         db.close();
     }
 }

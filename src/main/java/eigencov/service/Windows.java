@@ -8,7 +8,7 @@ import java.util.Collections;
 import java.util.List;
 
 /** Cuts fit windows out of a longer panel already read from the store. */
-final class Windows {
+public final class Windows {
     private Windows() {
     }
 
@@ -16,7 +16,7 @@ final class Windows {
      * The last {@code windowDays} dates of {@code all} on or before {@code asOf}, keeping only tickers
      * with at least one return in them: the same window the store would read as of that date.
      */
-    static ReturnPanel cut(ReturnPanel all, LocalDate asOf, int windowDays) {
+    public static ReturnPanel cut(ReturnPanel all, LocalDate asOf, int windowDays) {
         int end = Collections.binarySearch(all.dates(), asOf);
         end = end >= 0 ? end + 1 : -end - 1;
         int start = Math.max(0, end - windowDays);
