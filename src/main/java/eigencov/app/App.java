@@ -2,6 +2,7 @@ package eigencov.app;
 
 import com.fasterxml.jackson.databind.ObjectMapper;
 import eigencov.http.HttpApi;
+import eigencov.http.MetricsRoutes;
 import eigencov.http.RouteModule;
 import eigencov.store.Database;
 import io.javalin.Javalin;
@@ -20,26 +21,37 @@ public final class App implements AutoCloseable {
 
     private final AppConfig config;
     private final Database db;
+    private final Metrics metrics;
     private final Javalin http;
     private boolean started;
 
-    private App(AppConfig config, Database db, Javalin http) {
+    private App(AppConfig config, Database db, Metrics metrics, Javalin http) {
         this.config = config;
         this.db = db;
+        this.metrics = metrics;
         this.http = http;
     }
 
     /** Builds everything (opening the store and migrating it) without starting the HTTP server. */
     public static App create(AppConfig config) {
-        Database db = Database.open(config.dbUrl(), config.dbUser(), config.dbPassword(), config.dbPoolSize());
+        Metrics metrics = new Metrics();
+        Database db;
+        try {
+            db = Database.open(config.dbUrl(), config.dbUser(), config.dbPassword(), config.dbPoolSize(), metrics.poolTracker());
+        } catch (RuntimeException e) {
+            metrics.close();
+            throw e;
+        }
         try {
             ObjectMapper mapper = HttpApi.objectMapper();
             List<RouteModule> modules = new ArrayList<>();
+            modules.add(new MetricsRoutes(metrics::scrape, Metrics.CONTENT_TYPE));
             Javalin http = HttpApi.create(config.bindHost(), config.port(), config.maxBodyBytes(), config.shutdownGraceMs(),
-                    mapper, db::isReachable, modules);
-            return new App(config, db, http);
+                    mapper, db::isReachable, modules, metrics::httpRequest);
+            return new App(config, db, metrics, http);
         } catch (RuntimeException e) {
             db.close();
+            metrics.close();
             throw e;
         }
     }
@@ -69,10 +81,15 @@ public final class App implements AutoCloseable {
         return db;
     }
 
+    public Metrics metrics() {
+        return metrics;
+    }
+
     /** Stops HTTP (letting in-flight requests finish within the grace period), then the store. */
     @Override
     public void close() {
         if (started) http.stop();
         db.close();
+        metrics.close();
     }
 }

@@ -61,6 +61,12 @@ public final class HttpApi {
      */
     public static Javalin create(String host, int port, long maxBodyBytes, long stopGraceMs, ObjectMapper mapper,
                                  BooleanSupplier ready, List<RouteModule> modules) {
+        return create(host, port, maxBodyBytes, stopGraceMs, mapper, ready, modules, RequestObserver.NONE);
+    }
+
+    /** As above, telling {@code observer} about every finished request (route template, status, duration). */
+    public static Javalin create(String host, int port, long maxBodyBytes, long stopGraceMs, ObjectMapper mapper,
+                                 BooleanSupplier ready, List<RouteModule> modules, RequestObserver observer) {
         return Javalin.create(config -> {
             config.startup.showJavalinBanner = false;
             config.startup.showOldJavalinVersionWarning = false;
@@ -70,8 +76,10 @@ public final class HttpApi {
             config.http.maxRequestSize = maxBodyBytes;
             config.http.defaultContentType = "application/json";
             config.jsonMapper(new JavalinJackson(mapper, false));
-            config.requestLogger.http((ctx, ms) -> LOG.info("{} {} {} {} {}ms", ctx.attribute("requestId"), ctx.method(),
-                    ctx.path(), ctx.statusCode(), Math.round(ms)));
+            config.requestLogger.http((ctx, ms) -> {
+                LOG.info("{} {} {} {} {}ms", ctx.attribute("requestId"), ctx.method(), ctx.path(), ctx.statusCode(), Math.round(ms));
+                observer.finished(ctx.method().name(), routeOf(ctx), ctx.statusCode(), (long) (ms * 1_000_000.0));
+            });
 
             config.routes.before(ctx -> {
                 String id = ctx.header(REQUEST_ID);
@@ -121,6 +129,19 @@ public final class HttpApi {
                 if (!isProblem(ctx)) problem(ctx, new ApiException(405, "method-not-allowed", "Method not allowed", ctx.method() + " is not allowed on " + ctx.path(), List.of()));
             });
         });
+    }
+
+    /** Route label of a request that matched no route (keeps scanners from adding a series per path). */
+    public static final String UNMATCHED_ROUTE = "unmatched";
+
+    /** The route template the request matched, never the raw path. */
+    static String routeOf(Context ctx) {
+        try {
+            var endpoint = ctx.endpoints().matchedHttpEndpoint();
+            return endpoint == null ? UNMATCHED_ROUTE : endpoint.path;
+        } catch (RuntimeException e) {
+            return UNMATCHED_ROUTE;
+        }
     }
 
     private static boolean isProblem(Context ctx) {
