@@ -96,6 +96,11 @@ public final class HttpApi {
                     throw new ApiException(503, "not-ready", "Not ready", "the store is not reachable", List.of());
                 }
             });
+            config.routes.get("/openapi.yaml", ctx -> {
+                var in = HttpApi.class.getClassLoader().getResourceAsStream("openapi/eigencov.yaml");
+                if (in == null) throw new ApiException(404, "not-found", "Not found", "the OpenAPI document is not packaged", List.of());
+                ctx.contentType("application/yaml").result(in);
+            });
             for (RouteModule m : modules) m.register(config.routes);
 
             config.routes.exception(ApiException.class, (e, ctx) -> problem(ctx, e));

@@ -41,4 +41,11 @@ class OperationsEndpointsTest {
                 .body("type", equalTo("/problems/not-found"))
                 .body("instance", equalTo("/v1/nothing-here"));
     }
+
+    @Test
+    void serves_its_openapi_document() {
+        given().get("/openapi.yaml").then().statusCode(200)
+                .contentType(startsWith("application/yaml"))
+                .body(org.hamcrest.Matchers.containsString("openapi: 3.1.0"));
+    }
 }
