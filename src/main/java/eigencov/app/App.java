@@ -1,16 +1,38 @@
 package eigencov.app;
 
 import com.fasterxml.jackson.databind.ObjectMapper;
+import eigencov.http.ApiKeys;
 import eigencov.http.HttpApi;
 import eigencov.http.MetricsRoutes;
+import eigencov.http.ModelRoutes;
+import eigencov.http.PanelRoutes;
 import eigencov.http.RouteModule;
+import eigencov.math.FactorFitter;
+import eigencov.service.FitCodec;
+import eigencov.service.FitLookup;
+import eigencov.service.FitService;
+import eigencov.service.IngestListener;
+import eigencov.service.ModelService;
+import eigencov.service.PanelService;
+import eigencov.service.RefitScheduler;
+import eigencov.service.ServedFits;
+import eigencov.http.QueryRoutes;
+import eigencov.service.QueryService;
 import eigencov.store.Database;
+import eigencov.store.FitRepository;
+import eigencov.store.ModelRepository;
+import eigencov.store.PanelStore;
 import io.javalin.Javalin;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
+import java.time.Clock;
 import java.util.ArrayList;
 import java.util.List;
+import java.util.concurrent.Executors;
+import java.util.concurrent.ScheduledExecutorService;
+import java.util.concurrent.TimeUnit;
+import java.util.concurrent.atomic.AtomicInteger;
 
 /**
  * The wiring of one eigencov process, by hand and in one place: store, repositories, services,
@@ -19,21 +41,47 @@ import java.util.List;
 public final class App implements AutoCloseable {
     private static final Logger LOG = LoggerFactory.getLogger(App.class);
 
+    /** How often this instance looks in the store for fits written by other instances. */
+    static final long FIT_POLL_SECONDS = 5;
+
     private final AppConfig config;
     private final Database db;
     private final Metrics metrics;
     private final Javalin http;
+    private final Fits fits;
     private boolean started;
 
-    private App(AppConfig config, Database db, Metrics metrics, Javalin http) {
+    private App(AppConfig config, Database db, Metrics metrics, Javalin http, Fits fits) {
         this.config = config;
         this.db = db;
         this.metrics = metrics;
         this.http = http;
+        this.fits = fits;
+    }
+
+    /** The fit side of the wiring: serving snapshots, fitting, scheduling, and their background threads. */
+    private record Fits(ServedFits served, RefitScheduler scheduler, ScheduledExecutorService background) {
     }
 
     /** Builds everything (opening the store and migrating it) without starting the HTTP server. */
     public static App create(AppConfig config) {
+        return create(config, Clock.systemUTC(), null);
+    }
+
+    /** As {@link #create(AppConfig)}, with the clock fits and schedules are stamped by. */
+    public static App create(AppConfig config, Clock clock) {
+        return create(config, clock, null);
+    }
+
+    /**
+     * As {@link #create(AppConfig)}, but the query endpoints answer from {@code queryFits} instead of
+     * this process's own fits. For callers that serve fits from elsewhere: tests and the query benchmark.
+     */
+    public static App create(AppConfig config, FitLookup queryFits) {
+        return create(config, Clock.systemUTC(), queryFits);
+    }
+
+    private static App create(AppConfig config, Clock clock, FitLookup queryFits) {
         Metrics metrics = new Metrics();
         Database db;
         try {
@@ -42,22 +90,48 @@ public final class App implements AutoCloseable {
             metrics.close();
             throw e;
         }
+        ScheduledExecutorService background = null;
         try {
             ObjectMapper mapper = HttpApi.objectMapper();
             List<RouteModule> modules = new ArrayList<>();
+            PanelStore panelStore = new PanelStore(db);
+            ModelRepository modelRepo = new ModelRepository(db.dataSource());
+            FitRepository fitRepo = new FitRepository(db.dataSource());
+            ServedFits served = new ServedFits(fitRepo, modelRepo, new FitCodec(mapper));
+            FitService fitService = new FitService(modelRepo, fitRepo, panelStore, served, new FitCodec(mapper), new FactorFitter(null), mapper, clock);
+            ModelService modelService = new ModelService(modelRepo, fitRepo, panelStore, served, mapper, clock);
+            background = Executors.newScheduledThreadPool(2, daemonThreads("eigencov-refit-"));
+            RefitScheduler scheduler = new RefitScheduler(modelRepo, fitRepo, fitService, background, clock, RefitScheduler.DEFAULT_TICK);
+            PanelService panels = new PanelService(panelStore, config.maxAbsReturn(), scheduler);
+            modules.add(new PanelRoutes(panels, config.maxBodyBytes(), mapper.getFactory()));
+            modules.add(new ModelRoutes(modelService, fitService));
+            modules.add(new QueryRoutes(new QueryService(queryFits != null ? queryFits : served), mapper));
             modules.add(new MetricsRoutes(metrics::scrape, Metrics.CONTENT_TYPE));
             Javalin http = HttpApi.create(config.bindHost(), config.port(), config.maxBodyBytes(), config.shutdownGraceMs(),
-                    mapper, db::isReachable, modules, metrics::httpRequest);
-            return new App(config, db, metrics, http);
+                    mapper, db::isReachable, ApiKeys.parse(config.apiKeys()), modules, metrics::httpRequest);
+            if (config.demo()) new DemoLoader(config.demoDir(), panels, panelStore, modelService, fitService, mapper).load();
+            return new App(config, db, metrics, http, new Fits(served, scheduler, background));
         } catch (RuntimeException e) {
+            if (background != null) background.shutdownNow();
             db.close();
             metrics.close();
             throw e;
         }
     }
 
-    /** Starts serving; returns this for chaining. */
+    private static java.util.concurrent.ThreadFactory daemonThreads(String prefix) {
+        AtomicInteger n = new AtomicInteger();
+        return r -> {
+            Thread t = new Thread(r, prefix + n.incrementAndGet());
+            t.setDaemon(true);
+            return t;
+        };
+    }
+
+    /** Starts serving and the background refits; returns this for chaining. */
     public App start() {
+        fits.scheduler().start();
+        fits.background().scheduleWithFixedDelay(this::pollFits, FIT_POLL_SECONDS, FIT_POLL_SECONDS, TimeUnit.SECONDS);
         http.start();
         started = true;
         if (config.authDisabled()) {
@@ -85,10 +159,36 @@ public final class App implements AutoCloseable {
         return metrics;
     }
 
+    /** The fit every query uses (newest, by asOf, or by id). */
+    public FitLookup fitLookup() {
+        return fits.served();
+    }
+
+    /** For the ingest service: told after each committed batch, it starts the fits that follow an ingest. */
+    public IngestListener ingestListener() {
+        return fits.scheduler();
+    }
+
+    private void pollFits() {
+        try {
+            fits.served().refresh();
+        } catch (Exception e) {
+            LOG.warn("could not look for new fits in the store: {}", e.getMessage());
+        }
+    }
+
     /** Stops HTTP (letting in-flight requests finish within the grace period), then the store. */
     @Override
     public void close() {
         if (started) http.stop();
+        fits.background().shutdownNow();
+        try {
+            if (!fits.background().awaitTermination(config.shutdownGraceMs(), TimeUnit.MILLISECONDS)) {
+                LOG.warn("background fits did not stop within {} ms", config.shutdownGraceMs());
+            }
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+        }
         db.close();
         metrics.close();
     }

@@ -1,5 +1,7 @@
 package eigencov.app;
 
+import eigencov.http.ApiKeys;
+
 import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.LinkedHashMap;
@@ -59,6 +61,11 @@ public record AppConfig(
         dbPassword = dbPassword == null ? "" : dbPassword;
         apiKeys = apiKeys == null ? "" : apiKeys.trim();
         demoDir = demoDir == null ? DEFAULT_DEMO_DIR : demoDir;
+        try {
+            ApiKeys.parse(apiKeys);
+        } catch (IllegalArgumentException e) {
+            throw new ConfigException("apiKeys: " + e.getMessage());
+        }
     }
 
     /** Defaults for everything; tests start from here and override with {@code with...}. */

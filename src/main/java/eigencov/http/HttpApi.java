@@ -17,6 +17,7 @@ import io.javalin.Javalin;
 import io.javalin.http.Context;
 import io.javalin.http.HttpResponseException;
 import io.javalin.json.JavalinJackson;
+import org.eclipse.jetty.server.handler.GracefulHandler;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
@@ -34,6 +35,8 @@ import java.util.function.BooleanSupplier;
 public final class HttpApi {
     private static final Logger LOG = LoggerFactory.getLogger("eigencov.http");
     public static final String REQUEST_ID = "X-Request-Id";
+    /** Room for response headers (Jetty's default is 8 KB). */
+    static final int RESPONSE_HEADER_BYTES = 128 * 1024;
 
     private HttpApi() {
     }
@@ -59,22 +62,30 @@ public final class HttpApi {
      * @param maxBodyBytes largest request body read into memory by Javalin
      * @param stopGraceMs  how long a stop lets in-flight requests finish
      * @param ready        store reachability for /ready
+     * @param keys         API keys checked before every request ({@link ApiKeys#none()} = open)
      * @param modules      the endpoint groups
      */
     public static Javalin create(String host, int port, long maxBodyBytes, long stopGraceMs, ObjectMapper mapper,
-                                 BooleanSupplier ready, List<RouteModule> modules) {
-        return create(host, port, maxBodyBytes, stopGraceMs, mapper, ready, modules, RequestObserver.NONE);
+                                 BooleanSupplier ready, ApiKeys keys, List<RouteModule> modules) {
+        return create(host, port, maxBodyBytes, stopGraceMs, mapper, ready, keys, modules, RequestObserver.NONE);
     }
 
     /** As above, telling {@code observer} about every finished request (route template, status, duration). */
     public static Javalin create(String host, int port, long maxBodyBytes, long stopGraceMs, ObjectMapper mapper,
-                                 BooleanSupplier ready, List<RouteModule> modules, RequestObserver observer) {
+                                 BooleanSupplier ready, ApiKeys keys, List<RouteModule> modules, RequestObserver observer) {
         return Javalin.create(config -> {
             config.startup.showJavalinBanner = false;
             config.startup.showOldJavalinVersionWarning = false;
             config.jetty.host = host;
             config.jetty.port = port;
-            config.jetty.modifyServer(server -> server.setStopTimeout(stopGraceMs));
+            config.jetty.modifyServer(server -> {
+                // On stop, GracefulHandler refuses new requests and lets those in flight finish,
+                // for up to the stop timeout; Javalin attaches its own handler inside it.
+                server.setStopTimeout(stopGraceMs);
+                server.setHandler(new GracefulHandler());
+            });
+            // .npy answers list their row tickers in a header: 3,000 names of up to 32 characters is ~100 KB
+            config.jetty.modifyHttpConfiguration(http -> http.setResponseHeaderSize(RESPONSE_HEADER_BYTES));
             config.http.maxRequestSize = maxBodyBytes;
             config.http.defaultContentType = "application/json";
             config.jsonMapper(new JavalinJackson(mapper, false));
@@ -89,6 +100,7 @@ public final class HttpApi {
                 ctx.attribute("requestId", id);
                 ctx.header(REQUEST_ID, id);
             });
+            config.routes.before(keys::authorize);
 
             config.routes.get("/health", ctx -> ctx.json(Map.of("status", "up")));
             config.routes.get("/ready", ctx -> {

@@ -17,6 +17,9 @@ public final class Database implements AutoCloseable {
     /** Which SQL dialect the URL points at; the few statements that differ branch on this. */
     public enum Dialect { H2, POSTGRESQL }
 
+    /** How long a statement waits for a row lock held by another transaction. */
+    static final int LOCK_TIMEOUT_MS = 60_000;
+
     private final HikariDataSource pool;
     private final Dialect dialect;
 
@@ -49,6 +52,11 @@ public final class Database implements AutoCloseable {
         cfg.setConnectionTimeout(5_000);
         cfg.setValidationTimeout(2_000);
         if (poolMetrics != null) cfg.setMetricsTrackerFactory(poolMetrics);
+        if (dialect == Dialect.H2) {
+            // H2 waits only 1 s for a row lock by default; an upload serialised behind another
+            // upload into the same panel must wait for it instead of failing.
+            cfg.setConnectionInitSql("SET LOCK_TIMEOUT " + LOCK_TIMEOUT_MS);
+        }
         HikariDataSource ds;
         try {
             ds = new HikariDataSource(cfg);

@@ -17,3 +17,19 @@ CREATE TABLE panel_return (
     ret        DOUBLE PRECISION NOT NULL,
     PRIMARY KEY (panel_id, obs_date, ticker_id)
 );
+
+-- The dates of each panel with their row counts, and the tickers each panel holds. Ingest keeps
+-- both in step with panel_return inside the same transaction, so that window selection (the last
+-- N dates <= asOf), panel summaries and read-back never have to scan panel_return to find them.
+CREATE TABLE panel_date (
+    panel_id   BIGINT NOT NULL REFERENCES panel (id),
+    obs_date   DATE NOT NULL,
+    row_count  INT NOT NULL,
+    PRIMARY KEY (panel_id, obs_date)
+);
+
+CREATE TABLE panel_ticker (
+    panel_id   BIGINT NOT NULL REFERENCES panel (id),
+    ticker_id  INT NOT NULL REFERENCES ticker (id),
+    PRIMARY KEY (panel_id, ticker_id)
+);

@@ -29,6 +29,9 @@ public final class ContractFilter implements Filter {
         OpenApiContract contract = OpenApiContract.get();
         String body = isBinary(response.getContentType()) ? "" : response.getBody().asString();
         List<String> problems = contract.checkResponse(req.getMethod(), path, response.getStatusCode(), response.getContentType(), body);
+        java.util.Set<String> headers = new java.util.HashSet<>();
+        response.getHeaders().forEach(h -> headers.add(h.getName()));
+        problems = concat(problems, contract.checkHeaders(req.getMethod(), path, response.getStatusCode(), headers));
         if (response.getStatusCode() < 300 && req.getBody() != null && req.getBody() instanceof String s) {
             problems = concat(problems, contract.checkRequest(req.getMethod(), path, req.getContentType(), s));
         }

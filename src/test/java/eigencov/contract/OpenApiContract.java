@@ -142,6 +142,31 @@ final class OpenApiContract {
         return out;
     }
 
+    /**
+     * The headers the spec marks {@code required: true} for this response that the response lacks.
+     *
+     * @param present response header names, any case
+     */
+    List<String> checkHeaders(String method, String path, int status, java.util.Set<String> present) {
+        String template = templateFor(path);
+        if (template == null) return List.of();
+        JsonNode responses = spec.path("paths").path(template).path(method.toLowerCase(Locale.ROOT)).path("responses");
+        JsonNode response = responses.path(Integer.toString(status));
+        while (response.has("$ref")) response = spec.at(response.get("$ref").asText().substring(1));
+        java.util.Set<String> have = new java.util.HashSet<>();
+        for (String h : present) have.add(h.toLowerCase(Locale.ROOT));
+        List<String> out = new ArrayList<>();
+        for (Iterator<Map.Entry<String, JsonNode>> it = response.path("headers").fields(); it.hasNext(); ) {
+            Map.Entry<String, JsonNode> h = it.next();
+            JsonNode header = h.getValue();
+            while (header.has("$ref")) header = spec.at(header.get("$ref").asText().substring(1));
+            if (header.path("required").asBoolean(false) && !have.contains(h.getKey().toLowerCase(Locale.ROOT))) {
+                out.add(method + " " + path + " -> " + status + ": required header " + h.getKey() + " missing");
+            }
+        }
+        return out;
+    }
+
     /** Checks a request body that the server accepted (2xx) against the operation's requestBody schema. */
     List<String> checkRequest(String method, String path, String contentType, String body) {
         String template = templateFor(path);

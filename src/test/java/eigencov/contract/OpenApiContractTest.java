@@ -39,6 +39,12 @@ class OpenApiContractTest {
     }
 
     @Test
+    void rejects_a_response_without_a_required_header() {
+        assertFalse(contract.checkHeaders("GET", "/health", 200, java.util.Set.of("Content-Type")).isEmpty());
+        assertTrue(contract.checkHeaders("GET", "/health", 200, java.util.Set.of("x-request-id")).isEmpty());
+    }
+
+    @Test
     void unknown_routes_must_still_answer_problem_json() {
         assertFalse(contract.checkResponse("GET", "/nope", 404, "text/html", "<html>").isEmpty());
         assertTrue(contract.checkResponse("GET", "/nope", 404, "application/problem+json",

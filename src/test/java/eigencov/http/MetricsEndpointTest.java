@@ -55,7 +55,7 @@ class MetricsEndpointTest {
             if (ctx.pathParam("name").equals("bad")) throw ApiException.badField("name", "is bad");
             ctx.result("ok");
         });
-        Javalin http = HttpApi.create("127.0.0.1", 0, 1 << 20, 0, HttpApi.objectMapper(), () -> true, List.of(things),
+        Javalin http = HttpApi.create("127.0.0.1", 0, 1 << 20, 0, HttpApi.objectMapper(), () -> true, ApiKeys.none(), List.of(things),
                 (method, route, status, nanos) -> {
                     assertTrue(nanos >= 0, "duration " + nanos);
                     seen.add(method + " " + route + " " + status);

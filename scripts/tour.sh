@@ -1,0 +1,92 @@
+#!/usr/bin/env bash
+# A guided tour of the eigencov API with curl, against a server started with the demo:
+#
+#   java -jar target/eigencov.jar serve --demo        # then, in another terminal:
+#   scripts/tour.sh                                   # or: EIGENCOV_URL=http://host:port scripts/tour.sh
+#
+# Each step prints the call, then the answer. Set EIGENCOV_KEY to send "Authorization: Bearer <key>".
+# Set TOUR_PAUSE=1 to wait for Enter between steps. The demo market (panel "vellmoor") and its
+# tickers are invented.
+set -euo pipefail
+
+URL="${EIGENCOV_URL:-http://127.0.0.1:8080}"
+MODEL="${TOUR_MODEL:-vellmoor-1y-eq}"
+PANEL="${TOUR_PANEL:-vellmoor}"
+AUTH=()
+if [[ -n "${EIGENCOV_KEY:-}" ]]; then AUTH=(-H "Authorization: Bearer ${EIGENCOV_KEY}"); fi
+if command -v jq >/dev/null 2>&1; then PRETTY=(jq .); else PRETTY=(cat); fi
+
+step() {
+    echo
+    echo "== $1"
+    shift
+    echo "\$ curl $*"
+    # Show the status line of errors too; a query endpoint that is not deployed yet answers 404.
+    local body status
+    body=$(curl -sS "${AUTH[@]}" -w '\n%{http_code}' "$@") || { echo "(request failed: is the server running at $URL?)"; return 0; }
+    status=${body##*$'\n'}
+    body=${body%$'\n'*}
+    echo "HTTP $status"
+    # Long answers are cut to TOUR_LINES lines (|| true: the cut closes the pipe early).
+    if [[ "$body" == \{* || "$body" == \[* ]]; then
+        echo "$body" | "${PRETTY[@]}" | head -n "${TOUR_LINES:-40}" || true
+    else
+        echo "$body" | head -n "${TOUR_LINES:-40}" || true
+    fi
+    if [[ -n "${TOUR_PAUSE:-}" ]]; then read -r -p "(Enter for the next step) " _; fi
+}
+
+JSON=(-H 'Content-Type: application/json')
+
+step "Is the server up, and is its store reachable?" "$URL/health"
+step "Ready?" "$URL/ready"
+
+step "Return panels: counts of tickers, dates and rows, and the date range" "$URL/v1/panels"
+step "One panel" "$URL/v1/panels/$PANEL"
+step "Read returns back (two tickers, one week), as CSV" -H 'Accept: text/csv' \
+    "$URL/v1/panels/$PANEL/returns?tickers=BLDN,BNDX&from=2026-11-20&to=2026-11-27"
+step "Upload returns (JSON; CSV with header date,ticker,value works too). Upserts on (date, ticker), all or nothing" \
+    -X POST "${JSON[@]}" "$URL/v1/panels/tour-panel/returns" \
+    -d '{"returns":[{"date":"2026-11-26","ticker":"AAA","value":0.012},{"date":"2026-11-27","ticker":"AAA","value":-0.004}]}'
+step "A bad row is rejected with its row and field, and nothing is stored" \
+    -X POST "${JSON[@]}" "$URL/v1/panels/tour-panel/returns" \
+    -d '{"returns":[{"date":"2026-11-27","ticker":"AAA","value":"lots"}]}'
+
+step "Models: each spec with its newest fit" "$URL/v1/models"
+step "One model" "$URL/v1/models/$MODEL"
+step "Create a model of your own (201; PUT again to replace it: 200, version + 1)" \
+    -X PUT "${JSON[@]}" "$URL/v1/models/tour-6m" \
+    -d '{"panel":"'"$PANEL"'","windowDays":126,"factors":{"rule":"eigenvalue-ratio","max":20},"halfLifeDays":63,"minCoverage":0.9,"basis":"correlation"}'
+step "An invalid spec names each bad field (problem+json)" \
+    -X PUT "${JSON[@]}" "$URL/v1/models/tour-bad" \
+    -d '{"panel":"'"$PANEL"'","windowDays":5,"factors":{"rule":"magic"},"minCoverage":1.5,"basis":"covariance"}'
+step "Fit it now (201 with the fit summary)" -X POST "$URL/v1/models/tour-6m/fits"
+step "Fit it as of a past date (backfill): reads no return dated after it" \
+    -X POST "${JSON[@]}" "$URL/v1/models/tour-6m/fits" -d '{"asOf":"2026-06-30"}'
+step "Fit history, newest first (failed attempts are listed with their reason)" "$URL/v1/models/$MODEL/fits"
+FIT_ID=$(curl -sS "${AUTH[@]}" "$URL/v1/models/$MODEL/fits" | sed -n 's/^{"fits":\[{"id":\([0-9]*\).*/\1/p' || true)
+step "One fit: universe, spectrum, factor-count evidence, imputation, alignment, timings" "$URL/v1/models/$MODEL/fits/${FIT_ID:-1}"
+
+TICKERS='["BLDN","BMMN","BNDX","BNHS","BRND","BRNS","BRRX","BTHG","DEMI"]'
+step "Covariance of a few names (annualised), from the newest fit" \
+    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/covariance" -d '{"tickers":'"$TICKERS"',"scale":"annual"}'
+step "The same as of a past date: the latest fit with asOf <= 2026-03-31" \
+    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/covariance?asOf=2026-03-31" -d '{"tickers":'"$TICKERS"',"correlation":true}'
+step "Covariance by GET, as CSV" -H 'Accept: text/csv' "$URL/v1/models/$MODEL/covariance?tickers=BLDN,BNDX,BRND&scale=annual"
+step "Factor form: exposures, factor covariance, specific variances" \
+    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/covariance" -d '{"tickers":["BLDN","BNDX","BRND"],"form":"factor"}'
+step "Unknown tickers: 422 listing them, or missing=omit to leave them out" \
+    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/covariance?missing=omit" -d '{"tickers":["BLDN","NOPE"]}'
+step "Exposures and specific variance" -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/exposures" -d '{"tickers":["BLDN","BNDX"]}'
+step "Factors: factor covariance and variance shares" "$URL/v1/models/$MODEL/factors"
+step "Factor returns over a month, as CSV" -H 'Accept: text/csv' "$URL/v1/models/$MODEL/factor-returns?from=2026-11-01&to=2026-11-27"
+step "Risk of a portfolio: volatility, factor/specific split, by factor, by asset" \
+    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/risk" \
+    -d '{"weights":{"BLDN":0.3,"BNDX":0.3,"BRND":0.2,"DEMI":0.2},"scale":"annual"}'
+step "Tracking error against a benchmark" \
+    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/risk" \
+    -d '{"weights":{"BLDN":0.4,"BNDX":0.3,"BRND":0.3},"benchmark":{"BLDN":0.25,"BNDX":0.25,"BRND":0.25,"DEMI":0.25},"scale":"annual"}'
+
+step "Clean up the tour's own model" -X DELETE "$URL/v1/models/tour-6m"
+echo
+echo "Tour done. Every query answer names the fit it used in \"fit\"."

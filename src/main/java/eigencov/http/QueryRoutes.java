@@ -1,0 +1,205 @@
+package eigencov.http;
+
+import com.fasterxml.jackson.core.JsonParser;
+import com.fasterxml.jackson.databind.DeserializationFeature;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.ObjectReader;
+import eigencov.service.CovarianceAnswer;
+import eigencov.service.CovarianceForm;
+import eigencov.service.CovarianceMatrix;
+import eigencov.service.CovarianceQuery;
+import eigencov.service.ExposuresQuery;
+import eigencov.service.FactorForm;
+import eigencov.service.QueryService;
+import eigencov.service.RiskQuery;
+import io.javalin.config.RoutesConfig;
+import io.javalin.http.Context;
+
+import java.io.IOException;
+import java.util.HashSet;
+import java.util.List;
+import java.util.Map;
+import java.util.Set;
+import java.util.regex.Pattern;
+
+/**
+ * The query endpoints (design.md section 4, "Queries"). Each handler parses and validates the
+ * request, calls one {@link QueryService} method and maps the answer with {@link QueryResponses}.
+ *
+ * <p>Every endpoint takes the query parameters {@code asOf=YYYY-MM-DD} or {@code fit=ID} (not both;
+ * default the newest fit) and, where tickers are named, {@code missing=error|omit}; POST bodies hold
+ * only the request itself. Formats by {@code Accept}: covariance (matrix form), exposures and
+ * factor returns in JSON, CSV and {@code .npy}; the covariance factor form, factors and risk in
+ * JSON only (a factor form is several arrays: over CSV or {@code .npy} ask for
+ * {@code /exposures} and {@code /factors} instead); anything else is a 406 problem.
+ */
+public final class QueryRoutes implements RouteModule {
+    private static final Pattern MODEL_NAME = Pattern.compile("[A-Za-z0-9._-]{1,64}");
+    private static final List<Representation> TABULAR = List.of(Representation.JSON, Representation.CSV, Representation.NPY);
+    private static final List<Representation> JSON_ONLY = List.of(Representation.JSON);
+    private static final Map<String, CovarianceForm> FORMS = Map.of("matrix", CovarianceForm.MATRIX, "factor", CovarianceForm.FACTOR);
+    private static final Set<String> COVARIANCE_GET = with(QueryParams.SELECTION, "tickers", "form", "scale", "horizonDays", "correlation");
+    private static final Set<String> EXPOSURES_GET = with(QueryParams.SELECTION, "tickers");
+    private static final Set<String> FIT_ONLY = Set.of("asOf", "fit");
+    private static final Set<String> FACTOR_RETURNS = with(FIT_ONLY, "from", "to");
+
+    private final QueryService service;
+    private final QueryResponses responses;
+    private final ObjectReader covarianceBody;
+    private final ObjectReader exposuresBody;
+    private final ObjectReader riskBody;
+
+    public QueryRoutes(QueryService service, ObjectMapper mapper) {
+        this.service = service;
+        this.responses = new QueryResponses(mapper);
+        this.covarianceBody = strictReader(mapper, CovarianceBody.class);
+        this.exposuresBody = strictReader(mapper, ExposuresBody.class);
+        this.riskBody = strictReader(mapper, RiskBody.class);
+    }
+
+    /**
+     * Reads a JSON body strictly: repeated keys (a ticker twice in weights) and fractional numbers
+     * for whole-number fields are errors, not silently resolved.
+     */
+    private static ObjectReader strictReader(ObjectMapper mapper, Class<?> type) {
+        return mapper.readerFor(type)
+                .with(JsonParser.Feature.STRICT_DUPLICATE_DETECTION)
+                .without(DeserializationFeature.ACCEPT_FLOAT_AS_INT);
+    }
+
+    /** POST /covariance body. */
+    record CovarianceBody(List<String> tickers, String form, String scale, Integer horizonDays, Boolean correlation) {
+    }
+
+    /** POST /exposures body. */
+    record ExposuresBody(List<String> tickers) {
+    }
+
+    /** POST /risk body. */
+    record RiskBody(Map<String, Double> weights, Map<String, Double> benchmark, String scale, Integer horizonDays) {
+    }
+
+    @Override
+    public void register(RoutesConfig routes) {
+        routes.get("/v1/models/{model}/covariance", this::covarianceGet);
+        routes.post("/v1/models/{model}/covariance", this::covariancePost);
+        routes.get("/v1/models/{model}/exposures", this::exposuresGet);
+        routes.post("/v1/models/{model}/exposures", this::exposuresPost);
+        routes.get("/v1/models/{model}/factors", this::factors);
+        routes.get("/v1/models/{model}/factor-returns", this::factorReturns);
+        routes.post("/v1/models/{model}/risk", this::risk);
+    }
+
+    private void covarianceGet(Context ctx) {
+        QueryParams p = QueryParams.of(ctx.queryParamMap(), COVARIANCE_GET);
+        Representation rep = Representation.negotiate(ctx.header("Accept"), TABULAR);
+        CovarianceQuery q = new CovarianceQuery(p.list("tickers"), QueryParams.choice("form", p.single("form"), FORMS, CovarianceForm.MATRIX),
+                QueryParams.scale(p.single("scale"), p.integer("horizonDays")), p.bool("correlation"), p.missing());
+        covariance(ctx, p, rep, q);
+    }
+
+    private void covariancePost(Context ctx) throws IOException {
+        QueryParams p = QueryParams.of(ctx.queryParamMap(), QueryParams.SELECTION);
+        Representation rep = Representation.negotiate(ctx.header("Accept"), TABULAR);
+        CovarianceBody b = body(ctx, covarianceBody);
+        CovarianceQuery q = new CovarianceQuery(b.tickers(), QueryParams.choice("form", b.form(), FORMS, CovarianceForm.MATRIX),
+                QueryParams.scale(b.scale(), b.horizonDays()), Boolean.TRUE.equals(b.correlation()), p.missing());
+        covariance(ctx, p, rep, q);
+    }
+
+    private void covariance(Context ctx, QueryParams p, Representation rep, CovarianceQuery q) {
+        if (q.form() == CovarianceForm.FACTOR && rep != Representation.JSON) {
+            throw new ApiException(406, "not-acceptable", "Not acceptable", "the factor form is answered in JSON only; for "
+                    + rep.mediaType + " ask for /exposures and /factors, or form=matrix",
+                    List.of(FieldError.field("Accept", "factor form is JSON only")));
+        }
+        CovarianceAnswer a = service.covariance(model(ctx), p.selector(), q);
+        String key = "covariance|" + q.form() + "|" + scaleKey(q.scale()) + "|" + q.correlation() + "|" + q.missing()
+                + "|" + String.join(",", q.tickers());
+        if (a instanceof CovarianceMatrix m) {
+            responses.covarianceMatrix(ctx, rep, m, key);
+        } else {
+            responses.factorForm(ctx, (FactorForm) a, key);
+        }
+    }
+
+    private void exposuresGet(Context ctx) {
+        QueryParams p = QueryParams.of(ctx.queryParamMap(), EXPOSURES_GET);
+        Representation rep = Representation.negotiate(ctx.header("Accept"), TABULAR);
+        exposures(ctx, p, rep, new ExposuresQuery(p.list("tickers"), p.missing()));
+    }
+
+    private void exposuresPost(Context ctx) throws IOException {
+        QueryParams p = QueryParams.of(ctx.queryParamMap(), QueryParams.SELECTION);
+        Representation rep = Representation.negotiate(ctx.header("Accept"), TABULAR);
+        exposures(ctx, p, rep, new ExposuresQuery(QueryRoutes.<ExposuresBody>body(ctx, exposuresBody).tickers(), p.missing()));
+    }
+
+    private void exposures(Context ctx, QueryParams p, Representation rep, ExposuresQuery q) {
+        responses.exposures(ctx, rep, service.exposures(model(ctx), p.selector(), q), "exposures|" + q.missing() + "|" + String.join(",", q.tickers()));
+    }
+
+    private void factors(Context ctx) {
+        QueryParams p = QueryParams.of(ctx.queryParamMap(), FIT_ONLY);
+        Representation.negotiate(ctx.header("Accept"), JSON_ONLY);
+        responses.factors(ctx, service.factors(model(ctx), p.selector()), "factors");
+    }
+
+    private void factorReturns(Context ctx) {
+        QueryParams p = QueryParams.of(ctx.queryParamMap(), FACTOR_RETURNS);
+        Representation rep = Representation.negotiate(ctx.header("Accept"), TABULAR);
+        var from = p.date("from");
+        var to = p.date("to");
+        responses.factorReturns(ctx, rep, service.factorReturns(model(ctx), p.selector(), from, to),
+                "factor-returns from=" + from + " to=" + to);
+    }
+
+    private void risk(Context ctx) throws IOException {
+        QueryParams p = QueryParams.of(ctx.queryParamMap(), QueryParams.SELECTION);
+        Representation.negotiate(ctx.header("Accept"), JSON_ONLY);
+        RiskBody b = body(ctx, riskBody);
+        RiskQuery q = new RiskQuery(b.weights(), b.benchmark(), QueryParams.scale(b.scale(), b.horizonDays()), p.missing());
+        responses.risk(ctx, service.risk(model(ctx), p.selector(), q), riskKey(q));
+    }
+
+    /**
+     * The normalised request for the ETag. Weights enter as their exact bits in hex: the
+     * benchmark showed decimal formatting of 3,000 weights costing more than the risk itself.
+     */
+    private static String riskKey(RiskQuery q) {
+        StringBuilder sb = new StringBuilder(32 * (q.weights().size() + 1));
+        sb.append("risk|").append(scaleKey(q.scale())).append('|').append(q.missing()).append("|weights");
+        weightsKey(sb, q.weights());
+        if (q.benchmark() != null) weightsKey(sb.append("|benchmark"), q.benchmark());
+        return sb.toString();
+    }
+
+    private static void weightsKey(StringBuilder sb, Map<String, Double> w) {
+        for (Map.Entry<String, Double> e : w.entrySet()) {
+            sb.append(',').append(e.getKey()).append('=').append(Long.toHexString(Double.doubleToLongBits(e.getValue())));
+        }
+    }
+
+    private static String scaleKey(eigencov.service.Scale s) {
+        return s.name() + ":" + s.days();
+    }
+
+    private static String model(Context ctx) {
+        String m = ctx.pathParam("model");
+        if (!MODEL_NAME.matcher(m).matches()) throw ApiException.badField("model", "must match [A-Za-z0-9._-]{1,64}, was '" + m + "'");
+        return m;
+    }
+
+    private static <T> T body(Context ctx, ObjectReader reader) throws IOException {
+        // a JsonProcessingException goes to HttpApi's mapper: 400 naming the JSON path
+        T value = reader.readValue(ctx.bodyAsBytes());
+        if (value == null) throw ApiException.badField("body", "a JSON object is required");
+        return value;
+    }
+
+    private static Set<String> with(Set<String> base, String... more) {
+        Set<String> s = new HashSet<>(base);
+        s.addAll(List.of(more));
+        return Set.copyOf(s);
+    }
+}

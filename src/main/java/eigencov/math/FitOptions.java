@@ -1,0 +1,38 @@
+package eigencov.math;
+
+import java.util.Objects;
+
+/**
+ * Options of one fit (design.md section 3).
+ *
+ * @param rule          factor-count rule
+ * @param halfLifeDays  half-life of exponential weights in window positions; null = equal weights
+ * @param minCoverage   share of window dates a ticker must have observed to enter the universe, in (0, 1]
+ * @param basis         covariance or correlation
+ * @param specificFloor floor of specific variance as a share of the ticker's variance, in [0, 1)
+ *                      (default {@value #DEFAULT_SPECIFIC_FLOOR}, common practice)
+ */
+public record FitOptions(FactorRule rule, Double halfLifeDays, double minCoverage, Basis basis, double specificFloor) {
+
+    /** Specific-variance floor as a share of S_ii: common practice (methods.md section 4), no canonical source. */
+    public static final double DEFAULT_SPECIFIC_FLOOR = 0.05;
+
+    public FitOptions {
+        Objects.requireNonNull(rule, "rule");
+        Objects.requireNonNull(basis, "basis");
+        if (halfLifeDays != null && !(halfLifeDays > 0 && Double.isFinite(halfLifeDays))) {
+            throw new IllegalArgumentException("halfLifeDays must be positive and finite, was " + halfLifeDays);
+        }
+        if (!(minCoverage > 0 && minCoverage <= 1)) {
+            throw new IllegalArgumentException("minCoverage must be in (0, 1], was " + minCoverage);
+        }
+        if (!(specificFloor >= 0 && specificFloor < 1)) {
+            throw new IllegalArgumentException("specificFloor must be in [0, 1), was " + specificFloor);
+        }
+    }
+
+    /** Equal weights, covariance basis, default floor. */
+    public static FitOptions of(FactorRule rule, double minCoverage) {
+        return new FitOptions(rule, null, minCoverage, Basis.COVARIANCE, DEFAULT_SPECIFIC_FLOOR);
+    }
+}

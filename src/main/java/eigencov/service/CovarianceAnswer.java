@@ -1,0 +1,14 @@
+package eigencov.service;
+
+import java.util.List;
+
+/** A covariance answer in either form; both name the fit, the answered tickers and the omitted ones. */
+public sealed interface CovarianceAnswer permits CovarianceMatrix, FactorForm {
+    FitRef fit();
+
+    /** Answered tickers, in request order. */
+    List<String> tickers();
+
+    /** Requested tickers the fit does not cover (empty unless missing=omit). */
+    List<String> omitted();
+}

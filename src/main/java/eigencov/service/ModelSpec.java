@@ -1,0 +1,142 @@
+package eigencov.service;
+
+import com.fasterxml.jackson.annotation.JsonInclude;
+import com.fasterxml.jackson.annotation.JsonPropertyOrder;
+import eigencov.math.Basis;
+import eigencov.math.FactorRule;
+import eigencov.math.FitOptions;
+
+import java.time.Duration;
+import java.time.format.DateTimeParseException;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.Locale;
+import java.util.regex.Pattern;
+
+/**
+ * A model spec as the API takes and echoes it (design.md section 4, {@code PUT /v1/models/{model}}).
+ * Boxed fields so that a missing value is reported by {@link #problems()} with its field name
+ * rather than defaulted silently. {@link #withDefaults()} fills the optional ones.
+ *
+ * @param refitOnIngest fit again after an ingest adds a new last date to the panel (default false)
+ */
+@JsonInclude(JsonInclude.Include.NON_NULL)
+@JsonPropertyOrder({"panel", "windowDays", "factors", "halfLifeDays", "minCoverage", "basis", "specificFloor", "refit", "refitOnIngest"})
+public record ModelSpec(String panel, Integer windowDays, Factors factors, Double halfLifeDays, Double minCoverage, String basis,
+                        Double specificFloor, Refit refit, Boolean refitOnIngest) {
+
+    /** Fewest window dates a spec may ask for. */
+    public static final int MIN_WINDOW_DAYS = 20;
+    /** Most window dates a spec may ask for (about 40 years of trading days). */
+    public static final int MAX_WINDOW_DAYS = 10_000;
+    /** Shortest scheduled refit period. */
+    public static final Duration MIN_REFIT_PERIOD = Duration.ofMinutes(1);
+    public static final Pattern NAME = Pattern.compile("[A-Za-z0-9._-]{1,64}");
+    static final List<String> RULES = List.of("fixed", "variance-share", "bai-ng", "eigenvalue-ratio", "random-matrix");
+
+    /** {@code {"rule": ..., "count"|"share"|"max": ...}}; which parameter applies depends on the rule. */
+    @JsonInclude(JsonInclude.Include.NON_NULL)
+    public record Factors(String rule, Integer count, Double share, Integer max) {
+    }
+
+    /** {@code {"every": "PT24H"}}: an ISO-8601 duration. */
+    public record Refit(String every) {
+    }
+
+    /** The spec with optional values filled: specificFloor 0.05 (common practice), refitOnIngest false. */
+    public ModelSpec withDefaults() {
+        return new ModelSpec(panel, windowDays, factors, halfLifeDays, minCoverage, basis == null ? null : basis.toLowerCase(Locale.ROOT),
+                specificFloor == null ? FitOptions.DEFAULT_SPECIFIC_FLOOR : specificFloor, refit,
+                refitOnIngest == null ? Boolean.FALSE : refitOnIngest);
+    }
+
+    /** Every problem of the spec, each naming its field; empty when valid. Does not check that the panel exists. */
+    public List<InvalidInputException.Issue> problems() {
+        List<InvalidInputException.Issue> out = new ArrayList<>();
+        if (panel == null) add(out, "panel", "is required");
+        else if (!NAME.matcher(panel).matches()) add(out, "panel", "must match [A-Za-z0-9._-]{1,64}, was '" + panel + "'");
+        if (windowDays == null) add(out, "windowDays", "is required");
+        else if (windowDays < MIN_WINDOW_DAYS || windowDays > MAX_WINDOW_DAYS)
+            add(out, "windowDays", "must be between " + MIN_WINDOW_DAYS + " and " + MAX_WINDOW_DAYS + ", was " + windowDays);
+        factorProblems(out);
+        if (halfLifeDays != null && !(halfLifeDays > 0 && Double.isFinite(halfLifeDays)))
+            add(out, "halfLifeDays", "must be a positive number of days, was " + halfLifeDays);
+        if (minCoverage == null) add(out, "minCoverage", "is required");
+        else if (!(minCoverage > 0 && minCoverage <= 1)) add(out, "minCoverage", "must be in (0, 1], was " + minCoverage);
+        if (basis == null) add(out, "basis", "is required");
+        else if (!basis.equalsIgnoreCase("covariance") && !basis.equalsIgnoreCase("correlation"))
+            add(out, "basis", "must be covariance or correlation, was '" + basis + "'");
+        if (specificFloor != null && !(specificFloor >= 0 && specificFloor < 1))
+            add(out, "specificFloor", "must be in [0, 1), was " + specificFloor);
+        if (refit != null) {
+            if (refit.every() == null) add(out, "refit.every", "is required when refit is given (ISO-8601 duration such as PT24H)");
+            else {
+                try {
+                    Duration d = Duration.parse(refit.every());
+                    if (d.compareTo(MIN_REFIT_PERIOD) < 0) add(out, "refit.every", "must be at least PT1M, was " + refit.every());
+                } catch (DateTimeParseException e) {
+                    add(out, "refit.every", "must be an ISO-8601 duration such as PT24H or P1D, was '" + refit.every() + "'");
+                }
+            }
+        }
+        return out;
+    }
+
+    private void factorProblems(List<InvalidInputException.Issue> out) {
+        if (factors == null) {
+            add(out, "factors", "is required, e.g. {\"rule\": \"bai-ng\", \"max\": 30}");
+            return;
+        }
+        String rule = factors.rule();
+        if (rule == null) {
+            add(out, "factors.rule", "is required: one of " + String.join(", ", RULES));
+            return;
+        }
+        if (!RULES.contains(rule)) {
+            add(out, "factors.rule", "unknown rule '" + rule + "': one of " + String.join(", ", RULES));
+            return;
+        }
+        String needs = switch (rule) {
+            case "fixed" -> "count";
+            case "variance-share" -> "share";
+            case "bai-ng", "eigenvalue-ratio" -> "max";
+            default -> null;
+        };
+        if (factors.count() != null && !"count".equals(needs)) add(out, "factors.count", "is not used by rule " + rule);
+        if (factors.share() != null && !"share".equals(needs)) add(out, "factors.share", "is not used by rule " + rule);
+        if (factors.max() != null && !"max".equals(needs)) add(out, "factors.max", "is not used by rule " + rule);
+        if ("count".equals(needs)) {
+            if (factors.count() == null) add(out, "factors.count", "is required by rule fixed");
+            else if (factors.count() < 1) add(out, "factors.count", "must be at least 1, was " + factors.count());
+        } else if ("share".equals(needs)) {
+            if (factors.share() == null) add(out, "factors.share", "is required by rule variance-share");
+            else if (!(factors.share() > 0 && factors.share() <= 1)) add(out, "factors.share", "must be in (0, 1], was " + factors.share());
+        } else if ("max".equals(needs)) {
+            if (factors.max() == null) add(out, "factors.max", "is required by rule " + rule);
+            else if (factors.max() < 1) add(out, "factors.max", "must be at least 1, was " + factors.max());
+        }
+    }
+
+    private static void add(List<InvalidInputException.Issue> out, String field, String message) {
+        out.add(new InvalidInputException.Issue(null, field, message));
+    }
+
+    /** The engine's options for this (valid, defaulted) spec. */
+    public FitOptions fitOptions() {
+        FactorRule rule = switch (factors.rule()) {
+            case "fixed" -> new FactorRule.Fixed(factors.count());
+            case "variance-share" -> new FactorRule.VarianceShare(factors.share());
+            case "bai-ng" -> new FactorRule.BaiNg(factors.max());
+            case "eigenvalue-ratio" -> new FactorRule.EigenvalueRatio(factors.max());
+            case "random-matrix" -> new FactorRule.RandomMatrix();
+            default -> throw new IllegalStateException("unknown rule " + factors.rule());
+        };
+        return new FitOptions(rule, halfLifeDays, minCoverage, Basis.valueOf(basis.toUpperCase(Locale.ROOT)),
+                specificFloor == null ? FitOptions.DEFAULT_SPECIFIC_FLOOR : specificFloor);
+    }
+
+    /** The scheduled refit period, or null. */
+    public Duration refitPeriod() {
+        return refit == null || refit.every() == null ? null : Duration.parse(refit.every());
+    }
+}

@@ -1,0 +1,159 @@
+package eigencov.service;
+
+import eigencov.math.FactorModel;
+import eigencov.math.FitResult;
+import eigencov.math.PortfolioRisk;
+import eigencov.math.RiskCalculator;
+
+import java.time.LocalDate;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.Map;
+
+/**
+ * Answers queries from served fits: covariance (matrix or factor form), exposures, factors, factor
+ * returns and portfolio risk. Everything is read from the fit's factor form, never from a K x K
+ * matrix (style practice 9). Stateless apart from the {@link FitLookup} it reads; safe for
+ * concurrent use.
+ */
+public final class QueryService {
+    /** Problem type of a query naming tickers a fit does not cover (HTTP 422). */
+    public static final String UNKNOWN_TICKERS = "unknown-tickers";
+
+    private final FitLookup fits;
+
+    public QueryService(FitLookup fits) {
+        this.fits = java.util.Objects.requireNonNull(fits, "fits");
+    }
+
+    /** Covariance of the requested tickers in matrix or factor form. */
+    public CovarianceAnswer covariance(String model, FitSelector selector, CovarianceQuery q) {
+        ServedFit served = resolve(model, selector);
+        TickerSelection sel = select(served, q.tickers(), i -> "tickers[" + i + "]", q.missing());
+        double scale = q.scale().varianceMultiplier();
+        if (q.form() == CovarianceForm.MATRIX) {
+            double[] c = RiskCalculator.covariance(served.result().model(), sel.rows(), scale, q.correlation());
+            return new CovarianceMatrix(served.ref(), sel.kept(), sel.omitted(), q.scale(), q.correlation(), c);
+        }
+        return factorForm(served, sel, q.scale());
+    }
+
+    /** Exposures and daily specific variances of the requested tickers (the factor form without F). */
+    public FactorForm exposures(String model, FitSelector selector, ExposuresQuery q) {
+        ServedFit served = resolve(model, selector);
+        TickerSelection sel = select(served, q.tickers(), i -> "tickers[" + i + "]", q.missing());
+        return factorForm(served, sel, Scale.daily());
+    }
+
+    /** Factor covariance and the eigenvalue spectrum of the fit. */
+    public FactorSpectrum factors(String model, FitSelector selector) {
+        ServedFit served = resolve(model, selector);
+        FitResult r = served.result();
+        return new FactorSpectrum(served.ref(), r.model().factors(), r.model().factorCovariance(), r.eigenvalues(),
+                r.varianceShare());
+    }
+
+    /**
+     * Factor returns of the fit's window dated within [from, to] (either may be null: open end).
+     * A range outside the window gives an empty series.
+     */
+    public FactorReturnSeries factorReturns(String model, FitSelector selector, LocalDate from, LocalDate to) {
+        if (from != null && to != null && from.isAfter(to)) {
+            throw InvalidInputException.field("from", "must not be after to (" + from + " > " + to + ")");
+        }
+        ServedFit served = resolve(model, selector);
+        FitResult r = served.result();
+        List<LocalDate> dates = r.dates();
+        int first = 0;
+        int end = dates.size();
+        while (first < end && from != null && dates.get(first).isBefore(from)) first++;
+        while (end > first && to != null && dates.get(end - 1).isAfter(to)) end--;
+        int k = r.model().factors();
+        double[] all = r.factorReturns();
+        double[] part = java.util.Arrays.copyOfRange(all, first * k, end * k);
+        return new FactorReturnSeries(served.ref(), k, dates.subList(first, end), part);
+    }
+
+    /** Risk of a portfolio, with tracking error when a benchmark is given. */
+    public RiskAnswer risk(String model, FitSelector selector, RiskQuery q) {
+        ServedFit served = resolve(model, selector);
+        List<String> names = new ArrayList<>(q.weights().keySet());
+        TickerSelection sel = TickerSelection.of(served.result(), names, i -> "weights." + names.get(i));
+        List<InvalidInputException.Issue> issues = new ArrayList<>(sel.issues());
+        TickerSelection bench = null;
+        List<String> benchNames = null;
+        if (q.benchmark() != null) {
+            benchNames = new ArrayList<>(q.benchmark().keySet());
+            List<String> bn = benchNames;
+            bench = TickerSelection.of(served.result(), bn, i -> "benchmark." + bn.get(i));
+            issues.addAll(bench.issues());
+        }
+        if (q.missing() == MissingTickers.ERROR && !issues.isEmpty()) throw uncovered(served, issues);
+        requireSome(served, sel, "weights");
+        if (bench != null) requireSome(served, bench, "benchmark");
+
+        double[] w = weightsOf(q.weights(), sel.kept());
+        double[] bw = bench == null ? null : weightsOf(q.benchmark(), bench.kept());
+        PortfolioRisk risk = RiskCalculator.portfolio(served.result().model(), sel.rows(), w,
+                bench == null ? null : bench.rows(), bw, q.scale().varianceMultiplier());
+        List<String> omitted = new ArrayList<>(sel.omitted());
+        if (bench != null) {
+            for (String t : bench.omitted()) if (!omitted.contains(t)) omitted.add(t);
+        }
+        List<String> activeTickers = new ArrayList<>();
+        if (risk.active() != null) {
+            for (int row : risk.active().indices()) activeTickers.add(served.result().model().tickers().get(row));
+        }
+        return new RiskAnswer(served.ref(), q.scale(), sel.kept(), w, omitted, risk, activeTickers);
+    }
+
+    private ServedFit resolve(String model, FitSelector selector) {
+        return fits.resolve(model, selector.asOf(), selector.fitId());
+    }
+
+    private static TickerSelection select(ServedFit served, List<String> tickers, java.util.function.IntFunction<String> fieldOf,
+                                          MissingTickers missing) {
+        TickerSelection sel = TickerSelection.of(served.result(), tickers, fieldOf);
+        if (missing == MissingTickers.ERROR && !sel.issues().isEmpty()) throw uncovered(served, sel.issues());
+        requireSome(served, sel, "tickers");
+        return sel;
+    }
+
+    private static void requireSome(ServedFit served, TickerSelection sel, String field) {
+        if (sel.kept().isEmpty()) {
+            throw new InvalidInputException("none of the requested " + field + " is covered by fit " + served.ref().id()
+                    + " of model '" + served.ref().model() + "'", Tickers.cap(sel.issues()), true, UNKNOWN_TICKERS);
+        }
+    }
+
+    private static InvalidInputException uncovered(ServedFit served, List<InvalidInputException.Issue> issues) {
+        FitRef ref = served.ref();
+        return new InvalidInputException(issues.size() + " requested ticker" + (issues.size() == 1 ? " is" : "s are")
+                + " not covered by fit " + ref.id() + " of model '" + ref.model() + "' (as of " + ref.asOf()
+                + "); use missing=omit to answer on the others", Tickers.cap(issues), true, UNKNOWN_TICKERS);
+    }
+
+    /** Gathers rows of B and D for the selected tickers (EJML-style extract by row index). */
+    private static FactorForm factorForm(ServedFit served, TickerSelection sel, Scale scale) {
+        FactorModel m = served.result().model();
+        int k = m.factors();
+        int[] rows = sel.rows();
+        double s = scale.varianceMultiplier();
+        double[] b = new double[rows.length * k];
+        double[] d = new double[rows.length];
+        for (int r = 0; r < rows.length; r++) {
+            int i = rows[r];
+            for (int j = 0; j < k; j++) b[r * k + j] = m.exposure(i, j);
+            d[r] = m.specificVariance(i) * s;
+        }
+        double[] f = m.factorCovariance();
+        for (int p = 0; p < f.length; p++) f[p] *= s;
+        return new FactorForm(served.ref(), sel.kept(), sel.omitted(), scale, k, b, f, d);
+    }
+
+    private static double[] weightsOf(Map<String, Double> weights, List<String> kept) {
+        double[] w = new double[kept.size()];
+        for (int i = 0; i < w.length; i++) w[i] = weights.get(kept.get(i));
+        return w;
+    }
+}

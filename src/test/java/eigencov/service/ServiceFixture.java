@@ -1,0 +1,71 @@
+package eigencov.service;
+
+import com.fasterxml.jackson.databind.ObjectMapper;
+import eigencov.http.HttpApi;
+import eigencov.math.FactorFitter;
+import eigencov.store.Database;
+import eigencov.store.FitRepository;
+import eigencov.store.ModelRepository;
+import eigencov.store.PanelStore;
+
+import java.io.ByteArrayInputStream;
+import java.nio.charset.StandardCharsets;
+import java.time.Clock;
+import java.time.LocalDate;
+import java.util.List;
+
+/**
+ * The services of one instance wired by hand over an in-memory H2 store, as App does. A second
+ * fixture on the same database name plays a restarted process or another instance.
+ */
+final class ServiceFixture implements AutoCloseable {
+    final Database db;
+    final ObjectMapper mapper = HttpApi.objectMapper();
+    final ModelRepository modelRepo;
+    final FitRepository fitRepo;
+    final PanelStore windows;
+    final PanelService panels;
+    final ServedFits served;
+    final FitService fits;
+    final ModelService models;
+    final Clock clock;
+
+    ServiceFixture(String dbName, Clock clock) {
+        this(Database.open("jdbc:h2:mem:" + dbName + ";DB_CLOSE_DELAY=-1", "", "", 4), clock);
+    }
+
+    private ServiceFixture(Database db, Clock clock) {
+        this.db = db;
+        this.clock = clock;
+        modelRepo = new ModelRepository(db.dataSource());
+        fitRepo = new FitRepository(db.dataSource());
+        windows = new PanelStore(db);
+        served = new ServedFits(fitRepo, modelRepo, new FitCodec(mapper));
+        fits = new FitService(modelRepo, fitRepo, windows, served, new FitCodec(mapper), new FactorFitter(null), mapper, clock);
+        models = new ModelService(modelRepo, fitRepo, windows, served, mapper, clock);
+        panels = new PanelService(windows, 10, (panel, before, after) -> { });
+    }
+
+    /** Upserts {@code rows} into {@code panel} through the ingest service, as an upload would. */
+    void ingest(String panel, List<SyntheticReturns.Row> rows) {
+        panels.ingest(panel, ReturnsFormat.CSV, new ByteArrayInputStream(SyntheticReturns.csv(rows).getBytes(StandardCharsets.UTF_8)));
+    }
+
+    /** Writes the synthetic panel {@code panel}: {@code tickers} names over {@code days} weekdays from 2024-01-01. */
+    List<LocalDate> panel(String panel, int tickers, int days, long seed) {
+        List<LocalDate> dates = SyntheticReturns.weekdays(LocalDate.of(2024, 1, 1), days);
+        ingest(panel, SyntheticReturns.rows(seed, SyntheticReturns.tickers(tickers), dates));
+        return dates;
+    }
+
+    /** A 2-factor covariance model of {@code windowDays}, optionally with a refit period. */
+    static ModelSpec spec(String panel, int windowDays, String refitEvery, boolean refitOnIngest) {
+        return new ModelSpec(panel, windowDays, new ModelSpec.Factors("fixed", 2, null, null), null, 0.9, "covariance", null,
+                refitEvery == null ? null : new ModelSpec.Refit(refitEvery), refitOnIngest);
+    }
+
+    @Override
+    public void close() {
+        db.close();
+    }
+}
