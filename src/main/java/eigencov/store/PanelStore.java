@@ -44,11 +44,14 @@ public final class PanelStore {
     private static final int ATTEMPTS = 3;
 
     private final DataSource ds;
+    /** PostgreSQL: rows are streamed with COPY ({@link PgBulkWriter}); H2: JDBC batches. */
+    private final boolean copy;
     /** Ticker ids never change once assigned and interning commits on its own, so caching them is safe. */
     private final Map<String, Integer> tickerIds = new ConcurrentHashMap<>();
 
     public PanelStore(Database db) {
         this.ds = db.dataSource();
+        this.copy = db.dialect() == Database.Dialect.POSTGRESQL;
     }
 
     // ------------------------------------------------------------------ write
@@ -66,7 +69,7 @@ public final class PanelStore {
                 c.setAutoCommit(false);
                 try {
                     long panelId = lockPanel(c, panel);
-                    UpsertCounts counts = write(c, panelId, batch, ids);
+                    UpsertCounts counts = write(c, panelId, batch, ids, copy);
                     c.commit();
                     return counts;
                 } catch (SQLException | RuntimeException e) {
@@ -103,7 +106,7 @@ public final class PanelStore {
         return id.getAsLong();
     }
 
-    private static UpsertCounts write(Connection c, long panelId, ReturnBatch b, int[] ids) throws SQLException {
+    private static UpsertCounts write(Connection c, long panelId, ReturnBatch b, int[] ids, boolean copy) throws SQLException {
         int nDates = b.dateCount();
         int n = b.size();
         int[] dateStart = new int[nDates + 1];
@@ -156,41 +159,10 @@ public final class PanelStore {
         }
 
         int[] insertedOnDate = new int[nDates];
-        try (PreparedStatement ins = c.prepareStatement(
-                "INSERT INTO panel_return (panel_id, obs_date, ticker_id, ret) VALUES (?, ?, ?, ?)");
-             PreparedStatement upd = c.prepareStatement(
-                     "UPDATE panel_return SET ret = ? WHERE panel_id = ? AND obs_date = ? AND ticker_id = ?")) {
-            int pendingIns = 0;
-            int pendingUpd = 0;
-            for (int r = 0; r < n; r++) {
-                int d = b.dateIndex(r);
-                LocalDate date = b.date(d);
-                int id = ids[b.tickerIndex(r)];
-                if (exists[r]) {
-                    upd.setDouble(1, b.value(r));
-                    upd.setLong(2, panelId);
-                    upd.setObject(3, date);
-                    upd.setInt(4, id);
-                    upd.addBatch();
-                    if (++pendingUpd == BATCH) {
-                        upd.executeBatch();
-                        pendingUpd = 0;
-                    }
-                } else {
-                    ins.setLong(1, panelId);
-                    ins.setObject(2, date);
-                    ins.setInt(3, id);
-                    ins.setDouble(4, b.value(r));
-                    ins.addBatch();
-                    insertedOnDate[d]++;
-                    if (++pendingIns == BATCH) {
-                        ins.executeBatch();
-                        pendingIns = 0;
-                    }
-                }
-            }
-            if (pendingIns > 0) ins.executeBatch();
-            if (pendingUpd > 0) upd.executeBatch();
+        if (copy) {
+            PgBulkWriter.write(c, panelId, b, ids, exists, insertedOnDate);
+        } else {
+            batchWrite(c, panelId, b, ids, exists, insertedOnDate);
         }
 
         try (PreparedStatement ins = c.prepareStatement("INSERT INTO panel_date (panel_id, obs_date, row_count) VALUES (?, ?, ?)");
@@ -233,6 +205,48 @@ public final class PanelStore {
             p.executeBatch();
         }
         return new UpsertCounts(n - updated, updated);
+    }
+
+    /** The portable path: rows in JDBC batches of {@value #BATCH}. */
+    private static void batchWrite(Connection c, long panelId, ReturnBatch b, int[] ids, boolean[] exists, int[] insertedOnDate)
+            throws SQLException {
+        int n = b.size();
+        try (PreparedStatement ins = c.prepareStatement(
+                "INSERT INTO panel_return (panel_id, obs_date, ticker_id, ret) VALUES (?, ?, ?, ?)");
+             PreparedStatement upd = c.prepareStatement(
+                     "UPDATE panel_return SET ret = ? WHERE panel_id = ? AND obs_date = ? AND ticker_id = ?")) {
+            int pendingIns = 0;
+            int pendingUpd = 0;
+            for (int r = 0; r < n; r++) {
+                int d = b.dateIndex(r);
+                LocalDate date = b.date(d);
+                int id = ids[b.tickerIndex(r)];
+                if (exists[r]) {
+                    upd.setDouble(1, b.value(r));
+                    upd.setLong(2, panelId);
+                    upd.setObject(3, date);
+                    upd.setInt(4, id);
+                    upd.addBatch();
+                    if (++pendingUpd == BATCH) {
+                        upd.executeBatch();
+                        pendingUpd = 0;
+                    }
+                } else {
+                    ins.setLong(1, panelId);
+                    ins.setObject(2, date);
+                    ins.setInt(3, id);
+                    ins.setDouble(4, b.value(r));
+                    ins.addBatch();
+                    insertedOnDate[d]++;
+                    if (++pendingIns == BATCH) {
+                        ins.executeBatch();
+                        pendingIns = 0;
+                    }
+                }
+            }
+            if (pendingIns > 0) ins.executeBatch();
+            if (pendingUpd > 0) upd.executeBatch();
+        }
     }
 
     /** Row in [from, to) of the batch holding ticker {@code local} (rows there ascend by ticker), or -1. */

@@ -1,5 +1,7 @@
 package eigencov.service;
 
+import eigencov.app.AppConfig;
+
 import com.fasterxml.jackson.databind.ObjectMapper;
 import eigencov.http.HttpApi;
 import eigencov.math.FactorFitter;
@@ -31,7 +33,7 @@ final class ServiceFixture implements AutoCloseable {
     final Clock clock;
 
     ServiceFixture(String dbName, Clock clock) {
-        this(Database.open("jdbc:h2:mem:" + dbName + ";DB_CLOSE_DELAY=-1", "", "", 4), clock);
+        this(Database.open(AppConfig.forTest(dbName).dbUrl(), "", "", 4), clock);
     }
 
     private ServiceFixture(Database db, Clock clock) {

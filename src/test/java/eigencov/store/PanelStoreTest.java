@@ -1,5 +1,7 @@
 package eigencov.store;
 
+import eigencov.app.AppConfig;
+
 import eigencov.math.ReturnPanel;
 import eigencov.service.NotFoundException;
 import org.junit.jupiter.api.AfterAll;
@@ -30,7 +32,7 @@ class PanelStoreTest {
 
     @BeforeAll
     static void fill() {
-        db = Database.open("jdbc:h2:mem:panelstore;DB_CLOSE_DELAY=-1", "", "", 2);
+        db = Database.open(AppConfig.forTest("panelstore").dbUrl(), "", "", 2);
         store = new PanelStore(db);
         for (LocalDate d = LocalDate.of(2025, 1, 6); !d.isAfter(LocalDate.of(2025, 1, 17)); d = d.plusDays(1)) {
             if (d.getDayOfWeek().getValue() <= 5) DATES.add(d);
