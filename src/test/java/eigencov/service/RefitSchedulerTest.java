@@ -44,7 +44,7 @@ class RefitSchedulerTest {
         assertEquals(0, first.runDueRefits());
 
         clock.advance(Duration.ofHours(5)); // the process was down for five periods
-        try (ServiceFixture restarted = new ServiceFixture(dbName, clock)) {
+        try (ServiceFixture restarted = fx.sameStore()) {
             RefitScheduler again = scheduler(restarted);
             assertEquals(1, again.runDueRefits());
             assertEquals(0, again.runDueRefits());
@@ -60,7 +60,7 @@ class RefitSchedulerTest {
     void of_two_instances_only_one_claims_a_due_refit() {
         fx.panel("p", 8, 40, 2);
         fx.models.put("m", ServiceFixture.spec("p", 30, "PT1H", false));
-        try (ServiceFixture other = new ServiceFixture(dbName, clock)) {
+        try (ServiceFixture other = fx.sameStore()) {
             long id = fx.modelRepo.find("m").orElseThrow().id();
             ModelRepository a = fx.modelRepo;
             ModelRepository b = other.modelRepo;

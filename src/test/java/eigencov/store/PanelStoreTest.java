@@ -1,7 +1,6 @@
 package eigencov.store;
 
 import eigencov.app.AppConfig;
-
 import eigencov.math.ReturnPanel;
 import eigencov.service.NotFoundException;
 import org.junit.jupiter.api.AfterAll;
