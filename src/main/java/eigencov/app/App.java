@@ -22,6 +22,7 @@ import eigencov.store.Database;
 import eigencov.store.FitRepository;
 import eigencov.store.ModelRepository;
 import eigencov.store.PanelStore;
+import eigencov.store.RefitLocks;
 import io.javalin.Javalin;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
@@ -98,11 +99,12 @@ public final class App implements AutoCloseable {
             ModelRepository modelRepo = new ModelRepository(db.dataSource());
             FitRepository fitRepo = new FitRepository(db.dataSource());
             ServedFits served = new ServedFits(fitRepo, modelRepo, new FitCodec(mapper));
-            FitService fitService = new FitService(modelRepo, fitRepo, panelStore, served, new FitCodec(mapper), new FactorFitter(null), mapper, clock);
+            FitService fitService = new FitService(modelRepo, fitRepo, panelStore, served, new FitCodec(mapper), new FactorFitter(null), mapper, clock, metrics);
             ModelService modelService = new ModelService(modelRepo, fitRepo, panelStore, served, mapper, clock);
             background = Executors.newScheduledThreadPool(2, daemonThreads("eigencov-refit-"));
-            RefitScheduler scheduler = new RefitScheduler(modelRepo, fitRepo, fitService, background, clock, RefitScheduler.DEFAULT_TICK);
-            PanelService panels = new PanelService(panelStore, config.maxAbsReturn(), scheduler);
+            RefitScheduler scheduler = new RefitScheduler(modelRepo, fitRepo, new RefitLocks(db), fitService, metrics, background, clock,
+                    RefitScheduler.DEFAULT_TICK);
+            PanelService panels = new PanelService(panelStore, config.maxAbsReturn(), scheduler, metrics);
             modules.add(new PanelRoutes(panels, config.maxBodyBytes(), mapper.getFactory()));
             modules.add(new ModelRoutes(modelService, fitService));
             modules.add(new QueryRoutes(new QueryService(queryFits != null ? queryFits : served), mapper));

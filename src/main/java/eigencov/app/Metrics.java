@@ -2,6 +2,7 @@ package eigencov.app;
 
 import com.zaxxer.hikari.metrics.MetricsTrackerFactory;
 import com.zaxxer.hikari.metrics.micrometer.MicrometerMetricsTrackerFactory;
+import eigencov.service.ServiceMetrics;
 import io.micrometer.core.instrument.Counter;
 import io.micrometer.core.instrument.MeterRegistry;
 import io.micrometer.core.instrument.Timer;
@@ -37,7 +38,7 @@ import java.util.concurrent.TimeUnit;
  * </ul>
  * Tag values that come from users (panel and model names) are bounded by the names that exist.
  */
-public final class Metrics implements AutoCloseable {
+public final class Metrics implements ServiceMetrics, AutoCloseable {
     /** Prometheus text exposition format, version 0.0.4. */
     public static final String CONTENT_TYPE = "text/plain; version=0.0.4; charset=utf-8";
 
@@ -90,6 +91,7 @@ public final class Metrics implements AutoCloseable {
     }
 
     /** Rows stored by a committed ingest (inserted plus updated). */
+    @Override
     public void rowsIngested(String panel, long rows) {
         if (rows < 0) throw new IllegalArgumentException("rows must not be negative, was " + rows);
         Counter.builder("eigencov.rows.ingested").description("return rows stored by committed ingests")
@@ -97,6 +99,7 @@ public final class Metrics implements AutoCloseable {
     }
 
     /** A fit stored completely; {@code durationMs} from loading the window to the stored fit. */
+    @Override
     public void fitCompleted(String model, long durationMs) {
         if (durationMs < 0) throw new IllegalArgumentException("durationMs must not be negative, was " + durationMs);
         Timer.builder("eigencov.fit.duration").description("completed fits, load to stored")
@@ -110,12 +113,14 @@ public final class Metrics implements AutoCloseable {
      * @param reason a short category such as {@code store}, {@code too-few-dates}, {@code numeric};
      *               anything else is folded to {@code other} so the series stay few
      */
+    @Override
     public void fitFailed(String model, String reason) {
         Counter.builder("eigencov.fit.failures").description("fits that failed, by reason category")
                 .tags("model", model, "reason", category(reason)).register(registry).increment();
     }
 
     /** A scheduled refit that this instance did ({@code won}) or did not ({@code false}: another instance holds it) claim. */
+    @Override
     public void refitClaim(String model, boolean won) {
         Counter.builder("eigencov.refit.claims").description("scheduled refit claims on the shared store")
                 .tags("model", model, "outcome", won ? "won" : "taken").register(registry).increment();

@@ -30,7 +30,7 @@ class RefitSchedulerTest {
     }
 
     private RefitScheduler scheduler(ServiceFixture f) {
-        return new RefitScheduler(f.modelRepo, f.fitRepo, f.fits, executor, clock, RefitScheduler.DEFAULT_TICK);
+        return new RefitScheduler(f.modelRepo, f.fitRepo, f.refitLocks, f.fits, ServiceMetrics.NONE, executor, clock, RefitScheduler.DEFAULT_TICK);
     }
 
     @Test

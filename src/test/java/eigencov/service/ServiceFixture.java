@@ -8,6 +8,7 @@ import eigencov.store.Database;
 import eigencov.store.FitRepository;
 import eigencov.store.ModelRepository;
 import eigencov.store.PanelStore;
+import eigencov.store.RefitLocks;
 
 import java.io.ByteArrayInputStream;
 import java.nio.charset.StandardCharsets;
@@ -30,6 +31,7 @@ final class ServiceFixture implements AutoCloseable {
     final FitService fits;
     final ModelService models;
     final Clock clock;
+    final RefitLocks refitLocks;
     private final String url;
 
     /** A fixture on a fresh store (in-memory H2, or a fresh PostgreSQL schema on the PostgreSQL test run). */
@@ -40,6 +42,7 @@ final class ServiceFixture implements AutoCloseable {
     private ServiceFixture(Clock clock, String url) {
         this.url = url;
         this.db = Database.open(url, "", "", 4);
+        this.refitLocks = new RefitLocks(db);
         this.clock = clock;
         modelRepo = new ModelRepository(db.dataSource());
         fitRepo = new FitRepository(db.dataSource());
