@@ -61,7 +61,8 @@ public final class App implements AutoCloseable {
     }
 
     /** The fit side of the wiring: serving snapshots, fitting, scheduling, and their background threads. */
-    private record Fits(ServedFits served, RefitScheduler scheduler, ScheduledExecutorService background) {
+    private record Fits(ServedFits served, RefitScheduler scheduler, ScheduledExecutorService background,
+                        ScheduledExecutorService poller) {
     }
 
     /** Builds everything (opening the store and migrating it) without starting the HTTP server. */
@@ -92,6 +93,9 @@ public final class App implements AutoCloseable {
             throw e;
         }
         ScheduledExecutorService background = null;
+        // Its own thread: refits can keep both background threads busy for minutes, and other
+        // instances' fits must still be picked up within FIT_POLL_SECONDS.
+        ScheduledExecutorService poller = Executors.newSingleThreadScheduledExecutor(daemonThreads("eigencov-fit-poll-"));
         try {
             ObjectMapper mapper = HttpApi.objectMapper();
             List<RouteModule> modules = new ArrayList<>();
@@ -112,9 +116,10 @@ public final class App implements AutoCloseable {
             Javalin http = HttpApi.create(config.bindHost(), config.port(), config.maxBodyBytes(), config.shutdownGraceMs(),
                     mapper, db::isReachable, ApiKeys.parse(config.apiKeys()), modules, metrics::httpRequest);
             if (config.demo()) new DemoLoader(config.demoDir(), panels, panelStore, modelService, fitService, mapper).load();
-            return new App(config, db, metrics, http, new Fits(served, scheduler, background));
+            return new App(config, db, metrics, http, new Fits(served, scheduler, background, poller));
         } catch (RuntimeException e) {
             if (background != null) background.shutdownNow();
+            poller.shutdownNow();
             db.close();
             metrics.close();
             throw e;
@@ -133,7 +138,7 @@ public final class App implements AutoCloseable {
     /** Starts serving and the background refits; returns this for chaining. */
     public App start() {
         fits.scheduler().start();
-        fits.background().scheduleWithFixedDelay(this::pollFits, FIT_POLL_SECONDS, FIT_POLL_SECONDS, TimeUnit.SECONDS);
+        fits.poller().scheduleWithFixedDelay(this::pollFits, FIT_POLL_SECONDS, FIT_POLL_SECONDS, TimeUnit.SECONDS);
         http.start();
         started = true;
         if (config.authDisabled()) {
@@ -183,6 +188,7 @@ public final class App implements AutoCloseable {
     @Override
     public void close() {
         if (started) http.stop();
+        fits.poller().shutdownNow();
         fits.background().shutdownNow();
         try {
             if (!fits.background().awaitTermination(config.shutdownGraceMs(), TimeUnit.MILLISECONDS)) {
