@@ -24,7 +24,7 @@ pass() { echo "PASS $(basename "$0"): $*"; }
 cleanup() {
   local pid db f
   for f in "${CLEANUPS[@]}"; do eval "$f" || true; done
-  for pid in "${STARTED_PIDS[@]}"; do kill -9 "$pid" 2>/dev/null || true; done
+  for pid in "${STARTED_PIDS[@]}"; do { kill -9 "$pid" && wait "$pid"; } 2>/dev/null || true; done
   for db in "${CREATED_DBS[@]}"; do
     psql -X -q -h 127.0.0.1 -p "${db%%/*}" -U postgres -d postgres -c "DROP DATABASE IF EXISTS ${db#*/} WITH (FORCE)" >/dev/null 2>&1 || true
   done

@@ -480,13 +480,6 @@ public final class PanelStore {
     }
 
     private static ReturnPanel readWindow(Connection c, long panelId, List<LocalDate> dates, long expectedRows) throws SQLException {
-        long firstDay = dates.get(0).toEpochDay();
-        long lastDay = dates.get(dates.size() - 1).toEpochDay();
-        // Row of each calendar day in the span: a flat lookup instead of a map probe per value.
-        int[] rowOfDay = new int[Math.toIntExact(lastDay - firstDay + 1)];
-        Arrays.fill(rowOfDay, -1);
-        for (int t = 0; t < dates.size(); t++) rowOfDay[(int) (dates.get(t).toEpochDay() - firstDay)] = t;
-
         int cap = (int) Math.min(Integer.MAX_VALUE - 8, Math.max(16, expectedRows));
         int[] rowOf = new int[cap];
         int[] idOf = new int[cap];
@@ -494,28 +487,29 @@ public final class PanelStore {
         int n = 0;
         int maxId = 0;
         c.setAutoCommit(false);
-        try (PreparedStatement p = c.prepareStatement(
-                "SELECT obs_date, ticker_id, ret FROM panel_return WHERE panel_id = ? AND obs_date >= ? AND obs_date <= ?")) {
+        // One primary-key range per date rather than one scan of the span: no date column to decode per
+        // value, and PostgreSQL switches a statement executed repeatedly to binary transfer. A 504 x 3,000
+        // window read in a third of the time of the single query on both stores (scripts/bench-store).
+        try (PreparedStatement p = c.prepareStatement("SELECT ticker_id, ret FROM panel_return WHERE panel_id = ? AND obs_date = ?")) {
             p.setFetchSize(FETCH);
-            p.setLong(1, panelId);
-            p.setObject(2, dates.get(0));
-            p.setObject(3, dates.get(dates.size() - 1));
-            try (ResultSet rs = p.executeQuery()) {
-                while (rs.next()) {
-                    int row = rowOfDay[(int) (rs.getObject(1, LocalDate.class).toEpochDay() - firstDay)];
-                    if (row < 0) continue;
-                    if (n == rowOf.length) {
-                        int grown = rowOf.length + (rowOf.length >> 1);
-                        rowOf = Arrays.copyOf(rowOf, grown);
-                        idOf = Arrays.copyOf(idOf, grown);
-                        valueOf = Arrays.copyOf(valueOf, grown);
+            for (int row = 0; row < dates.size(); row++) {
+                p.setLong(1, panelId);
+                p.setObject(2, dates.get(row));
+                try (ResultSet rs = p.executeQuery()) {
+                    while (rs.next()) {
+                        if (n == rowOf.length) {
+                            int grown = rowOf.length + (rowOf.length >> 1);
+                            rowOf = Arrays.copyOf(rowOf, grown);
+                            idOf = Arrays.copyOf(idOf, grown);
+                            valueOf = Arrays.copyOf(valueOf, grown);
+                        }
+                        rowOf[n] = row;
+                        int id = rs.getInt(1);
+                        idOf[n] = id;
+                        maxId = Math.max(maxId, id);
+                        valueOf[n] = rs.getDouble(2);
+                        n++;
                     }
-                    rowOf[n] = row;
-                    int id = rs.getInt(2);
-                    idOf[n] = id;
-                    maxId = Math.max(maxId, id);
-                    valueOf[n] = rs.getDouble(3);
-                    n++;
                 }
             }
         } finally {
