@@ -29,7 +29,14 @@ public final class Main {
         StringBuilder sb = new StringBuilder("eigencov configuration:");
         for (Map.Entry<String, String> e : config.describe().entrySet()) sb.append("\n  ").append(e.getKey()).append(" = ").append(e.getValue());
         System.err.println(sb);
-        App app = App.create(config).start();
+        App app;
+        try {
+            app = App.create(config).start();
+        } catch (RuntimeException e) {
+            System.err.println("eigencov: cannot start: " + e.getMessage());
+            System.exit(1);
+            return;
+        }
         Runtime.getRuntime().addShutdownHook(new Thread(app::close, "eigencov-shutdown"));
     }
 }

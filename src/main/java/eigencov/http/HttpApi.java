@@ -79,8 +79,9 @@ public final class HttpApi {
             config.jetty.host = host;
             config.jetty.port = port;
             config.jetty.modifyServer(server -> {
-                // On stop, GracefulHandler refuses new requests and lets those in flight finish,
-                // for up to the stop timeout; Javalin attaches its own handler inside it.
+                // A stop waits up to the stop timeout for Jetty's graceful components: the connector
+                // stops accepting, GracefulHandler (Javalin attaches its handler inside it) lets the
+                // requests in flight finish. A zero timeout would cut them off.
                 server.setStopTimeout(stopGraceMs);
                 server.setHandler(new GracefulHandler());
             });

@@ -25,55 +25,63 @@ final class JsonReturnsReader {
     }
 
     static void read(InputStream body, ReturnBatchBuilder out) throws IOException {
-        long row = 0;
-        String field = null;
         try (JsonParser p = FACTORY.createParser(body)) {
-            if (p.nextToken() != JsonToken.START_OBJECT) {
-                out.issue(null, "body", "expected a JSON object {\"returns\": [...]}");
-                return;
+            try {
+                readBody(p, out);
+            } catch (JsonProcessingException e) {
+                // Locate the failure: the array position being read and the field name the parser last saw.
+                var ctx = p.getParsingContext();
+                String field = ctx.inObject() ? ctx.getCurrentName() : null;
+                long row = 0;
+                for (var c = ctx; c != null; c = c.getParent()) {
+                    if (c.inArray() && c.getParent() != null && "returns".equals(c.getParent().getCurrentName())) row = c.getCurrentIndex() + 1L;
+                }
+                var loc = e.getLocation();
+                String at = loc == null ? "" : " (line " + loc.getLineNr() + ", column " + loc.getColumnNr() + ")";
+                out.issue(row > 0 ? row : null, row > 0 && field != null ? field : "body", "malformed JSON: " + e.getOriginalMessage() + at);
             }
-            boolean sawReturns = false;
-            while (p.nextToken() == JsonToken.FIELD_NAME) {
-                String top = p.currentName();
-                JsonToken t = p.nextToken();
-                if (!top.equals("returns")) {
-                    out.issue(null, top, "unknown field; the body holds only \"returns\"");
-                    p.skipChildren();
-                    continue;
-                }
-                sawReturns = true;
-                if (t != JsonToken.START_ARRAY) {
-                    out.issue(null, "returns", "must be an array of {\"date\", \"ticker\", \"value\"} objects");
-                    p.skipChildren();
-                    continue;
-                }
-                while ((t = p.nextToken()) != JsonToken.END_ARRAY) {
-                    row++;
-                    field = null;
-                    out.beginRow(row);
-                    if (t != JsonToken.START_OBJECT) {
-                        out.invalidRow(null, "must be an object {\"date\", \"ticker\", \"value\"}");
-                        p.skipChildren();
-                        out.endRow();
-                        continue;
-                    }
-                    while (p.nextToken() == JsonToken.FIELD_NAME) {
-                        field = p.currentName();
-                        t = p.nextToken();
-                        readField(p, t, field, out);
-                    }
-                    field = null;
-                    out.endRow();
-                }
-                row = 0;
-            }
-            if (!sawReturns) out.issue(null, "returns", "missing");
-            if (p.nextToken() != null) out.issue(null, "body", "unexpected content after the JSON object");
-        } catch (JsonProcessingException e) {
-            var loc = e.getLocation();
-            String at = loc == null ? "" : " (line " + loc.getLineNr() + ", column " + loc.getColumnNr() + ")";
-            out.issue(row > 0 ? row : null, field != null ? field : "body", "malformed JSON: " + e.getOriginalMessage() + at);
         }
+    }
+
+    private static void readBody(JsonParser p, ReturnBatchBuilder out) throws IOException {
+        long row = 0;
+        if (p.nextToken() != JsonToken.START_OBJECT) {
+            out.issue(null, "body", "expected a JSON object {\"returns\": [...]}");
+            return;
+        }
+        boolean sawReturns = false;
+        while (p.nextToken() == JsonToken.FIELD_NAME) {
+            String top = p.currentName();
+            JsonToken t = p.nextToken();
+            if (!top.equals("returns")) {
+                out.issue(null, top, "unknown field; the body holds only \"returns\"");
+                p.skipChildren();
+                continue;
+            }
+            sawReturns = true;
+            if (t != JsonToken.START_ARRAY) {
+                out.issue(null, "returns", "must be an array of {\"date\", \"ticker\", \"value\"} objects");
+                p.skipChildren();
+                continue;
+            }
+            while ((t = p.nextToken()) != JsonToken.END_ARRAY) {
+                row++;
+                out.beginRow(row);
+                if (t != JsonToken.START_OBJECT) {
+                    out.invalidRow(null, "must be an object {\"date\", \"ticker\", \"value\"}");
+                    p.skipChildren();
+                    out.endRow();
+                    continue;
+                }
+                while (p.nextToken() == JsonToken.FIELD_NAME) {
+                    String field = p.currentName();
+                    readField(p, p.nextToken(), field, out);
+                }
+                out.endRow();
+            }
+        }
+        if (!sawReturns) out.issue(null, "returns", "missing");
+        if (p.nextToken() != null) out.issue(null, "body", "unexpected content after the JSON object");
     }
 
     private static void readField(JsonParser p, JsonToken t, String field, ReturnBatchBuilder out) throws IOException {

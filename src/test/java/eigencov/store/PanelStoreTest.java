@@ -131,6 +131,39 @@ class PanelStoreTest {
     }
 
     @Test
+    void window_and_read_back_spanning_several_read_chunks_are_complete_and_ordered() throws Exception {
+        // 12 dates x 2,500 tickers = 30,000 rows: more than one read chunk (20,000 rows).
+        int dates = 12;
+        int tickers = 2_500;
+        List<LocalDate> ds = new ArrayList<>();
+        for (int t = 0; t < dates; t++) ds.add(LocalDate.of(2023, 5, 1).plusDays(t));
+        List<String> ts = new ArrayList<>();
+        for (int k = 0; k < tickers; k++) ts.add(String.format("K%05d", k));
+        int n = dates * tickers;
+        int[] d = new int[n];
+        int[] k = new int[n];
+        double[] v = new double[n];
+        for (int i = 0; i < n; i++) {
+            d[i] = i / tickers;
+            k[i] = i % tickers;
+            v[i] = d[i] * 0.001 + k[i] * 1e-7;
+        }
+        store.upsert("big", new ReturnBatch(ds, ts, d, k, v));
+        ReturnPanel p = store.loadWindow("big", ds.get(dates - 1), dates);
+        assertEquals(ds, p.dates());
+        assertEquals(ts, p.tickers());
+        assertArrayEquals(v, p.values());
+        long[] seen = {0};
+        store.readReturns("big", List.of(), null, null, (date, ticker, value) -> {
+            int i = (int) seen[0]++;
+            assertEquals(ds.get(i / tickers), date);
+            assertEquals(ts.get(i % tickers), ticker);
+            assertEquals(v[i], value);
+        });
+        assertEquals(n, seen[0]);
+    }
+
+    @Test
     void upsert_counts_new_and_replaced_rows_and_keeps_the_summary_in_step() {
         List<LocalDate> dates = List.of(LocalDate.of(2024, 3, 1), LocalDate.of(2024, 3, 4));
         UpsertCounts first = store.upsert("u", new ReturnBatch(dates, List.of("X", "Y"),
