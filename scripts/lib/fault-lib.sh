@@ -40,12 +40,13 @@ require_jar() {
 # psql as postgres on the given port: sql PORT DB STATEMENT
 sql() { psql -X -q -At -h 127.0.0.1 -p "$1" -U postgres -d "$2" -v ON_ERROR_STOP=1 -c "$3"; }
 
-# Creates a fresh database on PORT, dropped at exit; prints its JDBC URL.
+# fresh_db PORT: creates a fresh database on PORT, dropped at exit, and sets DB_URL to its JDBC URL
+# (no command substitution: the subshell would lose the record of what to drop).
 fresh_db() {
   local port=$1 name="eigencov_$(basename "$0" | tr -c 'a-z0-9\n' '_')_$$_${RANDOM}"
   sql "$port" postgres "CREATE DATABASE $name" >/dev/null || fail "cannot create database $name on port $port"
   CREATED_DBS+=("$port/$name")
-  echo "jdbc:postgresql://127.0.0.1:$port/$name?user=postgres"
+  DB_URL="jdbc:postgresql://127.0.0.1:$port/$name?user=postgres"
 }
 
 # A free TCP port on loopback.
