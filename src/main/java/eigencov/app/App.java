@@ -3,6 +3,7 @@ package eigencov.app;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import eigencov.http.ApiKeys;
 import eigencov.http.HttpApi;
+import eigencov.http.MetricsRoutes;
 import eigencov.http.ModelRoutes;
 import eigencov.http.PanelRoutes;
 import eigencov.http.RouteModule;
@@ -21,6 +22,7 @@ import eigencov.store.Database;
 import eigencov.store.FitRepository;
 import eigencov.store.ModelRepository;
 import eigencov.store.PanelStore;
+import eigencov.store.RefitLocks;
 import io.javalin.Javalin;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
@@ -46,23 +48,25 @@ public final class App implements AutoCloseable {
 
     private final AppConfig config;
     private final Database db;
+    private final Metrics metrics;
     private final Javalin http;
     private final Fits fits;
     private boolean started;
 
-    private App(AppConfig config, Database db, Javalin http, Fits fits) {
+    private App(AppConfig config, Database db, Metrics metrics, Javalin http, Fits fits) {
         this.config = config;
         this.db = db;
+        this.metrics = metrics;
         this.http = http;
         this.fits = fits;
     }
 
     /**
-     * The fit side of the wiring: serving snapshots, fitting, scheduling, their background threads, and the
-     * pool the fitter splits its kernels over.
+     * The fit side of the wiring: serving snapshots, fitting, scheduling, their background threads, the
+     * poller that picks up other instances' fits, and the pool the fitter splits its kernels over.
      */
     private record Fits(ServedFits served, RefitScheduler scheduler, ScheduledExecutorService background,
-                        ExecutorService kernels) {
+                        ScheduledExecutorService poller, ExecutorService kernels) {
     }
 
     /** Threads the fitter's kernels (Gram product, tridiagonalisation, EM products) are split over: the machine's 2 cores. */
@@ -87,9 +91,19 @@ public final class App implements AutoCloseable {
     }
 
     private static App create(AppConfig config, Clock clock, FitLookup queryFits) {
-        Database db = Database.open(config.dbUrl(), config.dbUser(), config.dbPassword(), config.dbPoolSize());
+        Metrics metrics = new Metrics();
+        Database db;
+        try {
+            db = Database.open(config.dbUrl(), config.dbUser(), config.dbPassword(), config.dbPoolSize(), metrics.poolTracker());
+        } catch (RuntimeException e) {
+            metrics.close();
+            throw e;
+        }
         ScheduledExecutorService background = null;
         ExecutorService kernels = null;
+        // Its own thread: refits can keep both background threads busy for minutes, and other
+        // instances' fits must still be picked up within FIT_POLL_SECONDS.
+        ScheduledExecutorService poller = Executors.newSingleThreadScheduledExecutor(daemonThreads("eigencov-fit-poll-"));
         try {
             ObjectMapper mapper = HttpApi.objectMapper();
             List<RouteModule> modules = new ArrayList<>();
@@ -99,22 +113,26 @@ public final class App implements AutoCloseable {
             ServedFits served = new ServedFits(fitRepo, modelRepo, new FitCodec(mapper));
             // one pool shared by every fit: the calling thread runs one part of each kernel and the pool the rest
             kernels = Executors.newFixedThreadPool(FIT_THREADS, daemonThreads("eigencov-fit-"));
-            FitService fitService = new FitService(modelRepo, fitRepo, panelStore, served, new FitCodec(mapper), new FactorFitter(kernels), mapper, clock);
+            FitService fitService = new FitService(modelRepo, fitRepo, panelStore, served, new FitCodec(mapper), new FactorFitter(kernels), mapper, clock, metrics);
             ModelService modelService = new ModelService(modelRepo, fitRepo, panelStore, served, mapper, clock);
             background = Executors.newScheduledThreadPool(2, daemonThreads("eigencov-refit-"));
-            RefitScheduler scheduler = new RefitScheduler(modelRepo, fitRepo, fitService, background, clock, RefitScheduler.DEFAULT_TICK);
-            PanelService panels = new PanelService(panelStore, config.maxAbsReturn(), scheduler);
+            RefitScheduler scheduler = new RefitScheduler(modelRepo, fitRepo, new RefitLocks(db), fitService, metrics, background, clock,
+                    RefitScheduler.DEFAULT_TICK);
+            PanelService panels = new PanelService(panelStore, config.maxAbsReturn(), scheduler, metrics);
             modules.add(new PanelRoutes(panels, config.maxBodyBytes(), mapper.getFactory()));
             modules.add(new ModelRoutes(modelService, fitService));
             modules.add(new QueryRoutes(new QueryService(queryFits != null ? queryFits : served), mapper));
+            modules.add(new MetricsRoutes(metrics::scrape, Metrics.CONTENT_TYPE));
             Javalin http = HttpApi.create(config.bindHost(), config.port(), config.maxBodyBytes(), config.shutdownGraceMs(),
-                    mapper, db::isReachable, ApiKeys.parse(config.apiKeys()), modules);
+                    mapper, db::isReachable, ApiKeys.parse(config.apiKeys()), modules, metrics::httpRequest);
             if (config.demo()) new DemoLoader(config.demoDir(), panels, panelStore, modelService, fitService, mapper).load();
-            return new App(config, db, http, new Fits(served, scheduler, background, kernels));
+            return new App(config, db, metrics, http, new Fits(served, scheduler, background, poller, kernels));
         } catch (RuntimeException e) {
             if (background != null) background.shutdownNow();
             if (kernels != null) kernels.shutdownNow();
+            poller.shutdownNow();
             db.close();
+            metrics.close();
             throw e;
         }
     }
@@ -131,7 +149,7 @@ public final class App implements AutoCloseable {
     /** Starts serving and the background refits; returns this for chaining. */
     public App start() {
         fits.scheduler().start();
-        fits.background().scheduleWithFixedDelay(this::pollFits, FIT_POLL_SECONDS, FIT_POLL_SECONDS, TimeUnit.SECONDS);
+        fits.poller().scheduleWithFixedDelay(this::pollFits, FIT_POLL_SECONDS, FIT_POLL_SECONDS, TimeUnit.SECONDS);
         http.start();
         started = true;
         if (config.authDisabled()) {
@@ -153,6 +171,10 @@ public final class App implements AutoCloseable {
 
     public Database database() {
         return db;
+    }
+
+    public Metrics metrics() {
+        return metrics;
     }
 
     /** The fit every query uses (newest, by asOf, or by id). */
@@ -177,6 +199,7 @@ public final class App implements AutoCloseable {
     @Override
     public void close() {
         if (started) http.stop();
+        fits.poller().shutdownNow();
         fits.background().shutdownNow();
         try {
             if (!fits.background().awaitTermination(config.shutdownGraceMs(), TimeUnit.MILLISECONDS)) {
@@ -188,5 +211,6 @@ public final class App implements AutoCloseable {
         // after the fits that use it have stopped
         fits.kernels().shutdownNow();
         db.close();
+        metrics.close();
     }
 }

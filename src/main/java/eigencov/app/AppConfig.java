@@ -74,9 +74,20 @@ public record AppConfig(
                 DEFAULT_MAX_BODY_BYTES, DEFAULT_MAX_ABS_RETURN, DEFAULT_SHUTDOWN_GRACE_MS);
     }
 
-    /** Configuration for an in-process test server: any free port, a private in-memory H2 database. */
+    /** System property naming the store test apps use: {@code h2} (default) or {@code postgresql}. */
+    public static final String TEST_STORE_PROPERTY = "eigencov.test.db";
+
+    /**
+     * Configuration for an in-process test server: any free port and a private, empty database:
+     * in-memory H2, or, when the build's second test run sets {@value #TEST_STORE_PROPERTY}
+     * (see pom.xml), a fresh database on the test PostgreSQL from the {@link TestStore} in test
+     * sources. Reading a system property here is deliberate: this factory exists for tests only.
+     */
     public static AppConfig forTest(String databaseName) {
-        return defaults().withPort(0).withDbUrl("jdbc:h2:mem:" + databaseName + ";DB_CLOSE_DELAY=-1");
+        AppConfig base = defaults().withPort(0);
+        String store = System.getProperty(TEST_STORE_PROPERTY, "h2");
+        if (store.equals("h2")) return base.withDbUrl("jdbc:h2:mem:" + databaseName + ";DB_CLOSE_DELAY=-1");
+        return base.withDbUrl(TestStore.named(store).freshJdbcUrl(databaseName));
     }
 
     public AppConfig withPort(int p) { return new AppConfig(p, host, dbUrl, dbUser, dbPassword, dbPoolSize, demo, demoDir, apiKeys, maxBodyBytes, maxAbsReturn, shutdownGraceMs); }

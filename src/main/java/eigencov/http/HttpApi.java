@@ -21,6 +21,8 @@ import org.eclipse.jetty.server.handler.GracefulHandler;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
+import java.sql.SQLException;
+import java.sql.SQLTransientConnectionException;
 import java.util.List;
 import java.util.Map;
 import java.util.UUID;
@@ -65,6 +67,12 @@ public final class HttpApi {
      */
     public static Javalin create(String host, int port, long maxBodyBytes, long stopGraceMs, ObjectMapper mapper,
                                  BooleanSupplier ready, ApiKeys keys, List<RouteModule> modules) {
+        return create(host, port, maxBodyBytes, stopGraceMs, mapper, ready, keys, modules, RequestObserver.NONE);
+    }
+
+    /** As above, telling {@code observer} about every finished request (route template, status, duration). */
+    public static Javalin create(String host, int port, long maxBodyBytes, long stopGraceMs, ObjectMapper mapper,
+                                 BooleanSupplier ready, ApiKeys keys, List<RouteModule> modules, RequestObserver observer) {
         return Javalin.create(config -> {
             config.startup.showJavalinBanner = false;
             config.startup.showOldJavalinVersionWarning = false;
@@ -82,8 +90,10 @@ public final class HttpApi {
             config.http.maxRequestSize = maxBodyBytes;
             config.http.defaultContentType = "application/json";
             config.jsonMapper(new JavalinJackson(mapper, false));
-            config.requestLogger.http((ctx, ms) -> LOG.info("{} {} {} {} {}ms", ctx.attribute("requestId"), ctx.method(),
-                    ctx.path(), ctx.statusCode(), Math.round(ms)));
+            config.requestLogger.http((ctx, ms) -> {
+                LOG.info("{} {} {} {} {}ms", ctx.attribute("requestId"), ctx.method(), ctx.path(), ctx.statusCode(), Math.round(ms));
+                observer.finished(ctx.method().name(), routeOf(ctx), ctx.statusCode(), (long) (ms * 1_000_000.0));
+            });
 
             config.routes.before(ctx -> {
                 String id = ctx.header(REQUEST_ID);
@@ -116,11 +126,7 @@ public final class HttpApi {
                             e.getMessage(), e.issues().stream().map(i -> new FieldError(i.row(), i.field(), i.message())).toList())));
             config.routes.exception(ConflictException.class, (e, ctx) -> problem(ctx,
                     new ApiException(409, "conflict", "Conflict", e.getMessage(), List.of())));
-            config.routes.exception(UnavailableException.class, (e, ctx) -> {
-                LOG.warn("request {} {} {}: {}", ctx.attribute("requestId"), ctx.method(), ctx.path(), e.getMessage());
-                ctx.header("Retry-After", "5");
-                problem(ctx, new ApiException(503, "unavailable", "Service unavailable", e.getMessage(), List.of()));
-            });
+            config.routes.exception(UnavailableException.class, (e, ctx) -> unavailable(ctx, e.getMessage()));
             config.routes.exception(JsonProcessingException.class, (e, ctx) -> problem(ctx,
                     ApiException.badRequest("request body is not valid JSON for this endpoint: " + e.getOriginalMessage(),
                             List.of(FieldError.field(jsonPath(e), e.getOriginalMessage())))));
@@ -128,6 +134,11 @@ public final class HttpApi {
                     new ApiException(e.getStatus() >= 400 ? e.getStatus() : 500, slug(e.getStatus()), titleOf(e.getStatus()),
                             e.getMessage(), List.of())));
             config.routes.exception(Exception.class, (e, ctx) -> {
+                if (storeUnreachable(e)) {
+                    // Any store path, not only those that translate it: a lost database is a 503 to retry, not a 500.
+                    unavailable(ctx, "the store is not reachable right now");
+                    return;
+                }
                 LOG.error("request {} {} {} failed", ctx.attribute("requestId"), ctx.method(), ctx.path(), e);
                 problem(ctx, new ApiException(500, "internal", "Internal error",
                         "the server could not complete the request; quote request id " + ctx.attribute("requestId"), List.of()));
@@ -139,6 +150,40 @@ public final class HttpApi {
                 if (!isProblem(ctx)) problem(ctx, new ApiException(405, "method-not-allowed", "Method not allowed", ctx.method() + " is not allowed on " + ctx.path(), List.of()));
             });
         });
+    }
+
+    /** Route label of a request that matched no route (keeps scanners from adding a series per path). */
+    public static final String UNMATCHED_ROUTE = "unmatched";
+
+    /** The route template the request matched, never the raw path. */
+    static String routeOf(Context ctx) {
+        try {
+            var endpoint = ctx.endpoints().matchedHttpEndpoint();
+            return endpoint == null ? UNMATCHED_ROUTE : endpoint.path;
+        } catch (RuntimeException e) {
+            return UNMATCHED_ROUTE;
+        }
+    }
+
+    private static void unavailable(Context ctx, String detail) {
+        LOG.warn("request {} {} {}: {}", ctx.attribute("requestId"), ctx.method(), ctx.path(), detail);
+        ctx.header("Retry-After", "5");
+        problem(ctx, new ApiException(503, "unavailable", "Service unavailable", detail, List.of()));
+    }
+
+    /**
+     * True when {@code e} was caused by losing the database: the pool timed out waiting for a
+     * connection, or the driver reports SQLSTATE class 08 (connection exception) or 57P
+     * (server shutting down, or not yet accepting connections).
+     */
+    static boolean storeUnreachable(Throwable e) {
+        for (Throwable t = e; t != null; t = t.getCause()) {
+            if (t instanceof SQLTransientConnectionException) return true;
+            if (t instanceof SQLException s && s.getSQLState() != null
+                    && (s.getSQLState().startsWith("08") || s.getSQLState().startsWith("57P"))) return true;
+            if (t.getCause() == t) break;
+        }
+        return false;
     }
 
     private static boolean isProblem(Context ctx) {

@@ -44,10 +44,18 @@ public final class FitService {
     private final FactorFitter fitter;
     private final ObjectMapper mapper;
     private final Clock clock;
+    private final ServiceMetrics metrics;
     private final ConcurrentHashMap<String, ReentrantLock> locks = new ConcurrentHashMap<>();
 
     public FitService(ModelRepository models, FitRepository fits, PanelStore windows, ServedFits served, FitCodec codec,
                       FactorFitter fitter, ObjectMapper mapper, Clock clock) {
+        this(models, fits, windows, served, codec, fitter, mapper, clock, ServiceMetrics.NONE);
+    }
+
+    /** As above, reporting completed and failed fits to {@code metrics}. */
+    public FitService(ModelRepository models, FitRepository fits, PanelStore windows, ServedFits served, FitCodec codec,
+                      FactorFitter fitter, ObjectMapper mapper, Clock clock,
+                      ServiceMetrics metrics) {
         this.models = models;
         this.fits = fits;
         this.windows = windows;
@@ -56,6 +64,7 @@ public final class FitService {
         this.fitter = fitter;
         this.mapper = mapper;
         this.clock = clock;
+        this.metrics = metrics;
     }
 
     /**
@@ -124,10 +133,12 @@ public final class FitService {
             ServedFit previous = served.previousFor(m.name(), date);
             result = fitter.fit(w, spec.fitOptions(), previous == null ? null : previous.result().model());
         } catch (InsufficientDataException | IllegalArgumentException e) {
+            metrics.fitFailed(m.name(), e instanceof InsufficientDataException ? "insufficient-data" : "invalid-input");
             FitRow failed = fits.insertFailed(attempt, e.getMessage(), loadMs);
             LOG.warn("fit {} of model {} as of {} failed: {}", failed.id(), m.name(), date, e.getMessage());
             throw new FitFailedException(failed.id(), m.name(), e.getMessage());
         } catch (RuntimeException e) {
+            metrics.fitFailed(m.name(), "error");
             try {
                 fits.insertFailed(attempt, e.getClass().getSimpleName() + ": " + e.getMessage(), loadMs);
             } catch (RuntimeException recordFailure) {
@@ -140,6 +151,7 @@ public final class FitService {
         FitRow row = fits.insertOk(attempt, new FitRepository.Figures(result.model().factors(), result.model().size(), used.size(),
                 used.get(0), used.get(used.size() - 1), loadMs, computeMs), codec.toData(result));
         served.publish(new ServedFit(new FitRef(row.id(), m.name(), date, row.createdAt()), result));
+        metrics.fitCompleted(m.name(), (System.nanoTime() - t0) / 1_000_000);
         LOG.info("fit {} of model {} as of {}: k={} tickers={} dates={} load {} ms, compute {} ms, store {} ms", row.id(), m.name(), date,
                 row.factors(), row.tickers(), row.dates(), row.loadMs(), row.computeMs(), row.storeMs());
         return FitView.detail(row, result);

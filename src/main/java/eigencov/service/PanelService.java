@@ -28,6 +28,7 @@ public final class PanelService {
     private final PanelStore store;
     private final double maxAbsReturn;
     private final IngestListener listener;
+    private final ServiceMetrics metrics;
 
     /**
      * @param maxAbsReturn largest accepted |return| (a simple return; 10 = +1000 %)
@@ -41,12 +42,22 @@ public final class PanelService {
      * @param listener     told after each committed upload (fits that follow an ingest)
      */
     public PanelService(PanelStore store, double maxAbsReturn, IngestListener listener) {
+        this(store, maxAbsReturn, listener, ServiceMetrics.NONE);
+    }
+
+    /**
+     * @param maxAbsReturn largest accepted |return| (a simple return; 10 = +1000 %)
+     * @param listener     told after each committed upload (fits that follow an ingest)
+     * @param metrics      told the rows each committed upload stored
+     */
+    public PanelService(PanelStore store, double maxAbsReturn, IngestListener listener, ServiceMetrics metrics) {
         if (!(maxAbsReturn > 0) || Double.isInfinite(maxAbsReturn)) {
             throw new IllegalArgumentException("maxAbsReturn must be a positive finite number, was " + maxAbsReturn);
         }
         this.store = store;
         this.maxAbsReturn = maxAbsReturn;
         this.listener = listener;
+        this.metrics = metrics;
     }
 
     /**
@@ -70,6 +81,7 @@ public final class PanelService {
         ReturnBatch batch = builder.build();
         LocalDate lastBefore = store.panel(panel).map(PanelSummary::to).orElse(null);
         UpsertCounts counts = store.upsert(panel, batch);
+        metrics.rowsIngested(panel, counts.inserted() + counts.updated());
         List<LocalDate> dates = batch.dates();
         if (!dates.isEmpty()) {
             LocalDate batchLast = dates.get(dates.size() - 1);

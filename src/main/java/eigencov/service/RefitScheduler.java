@@ -3,6 +3,7 @@ package eigencov.service;
 import eigencov.store.FitRepository;
 import eigencov.store.ModelRepository;
 import eigencov.store.ModelRow;
+import eigencov.store.RefitLocks;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
@@ -10,6 +11,7 @@ import java.time.Clock;
 import java.time.Duration;
 import java.time.Instant;
 import java.time.LocalDate;
+import java.util.Optional;
 import java.util.concurrent.ScheduledExecutorService;
 import java.util.concurrent.TimeUnit;
 
@@ -19,11 +21,14 @@ import java.util.concurrent.TimeUnit;
  *
  * <p>Every tick (fixed delay, so runs never overlap) looks at each model with a refit period: it is
  * due when no fit was ever attempted, or when {@code now >= last + every}, where {@code last} is the
- * later of the last scheduled run and the last fit attempt, both read from the store. So after a
- * restart a missed run is made once (then {@code last = now}), not once per missed period. The run
- * is claimed in the store ({@link ModelRepository#claimRefit}) so that of several instances sharing
- * one database exactly one makes it. A failed run is recorded in the fit history by
- * {@link FitService}; the served fit stays.
+ * start of the model's last fit attempt in the store. So after a restart a missed run is made once
+ * (then {@code last = now}), not once per missed period. Of several instances sharing one database
+ * exactly one runs a due refit: it holds the model's {@link RefitLocks} claim for the length of the
+ * run and checks again under the claim that the run is still due. A claim dies with its holder, and
+ * a fit is stored in one transaction, so when an instance dies mid-refit nothing half-stored
+ * remains and the next check on any instance (within one tick) runs the refit. The start of each
+ * scheduled run is also recorded ({@link ModelRepository#claimRefit}). A failed run is recorded in
+ * the fit history by {@link FitService}; the served fit stays.
  */
 public final class RefitScheduler implements IngestListener {
     private static final Logger LOG = LoggerFactory.getLogger(RefitScheduler.class);
@@ -32,17 +37,21 @@ public final class RefitScheduler implements IngestListener {
 
     private final ModelRepository models;
     private final FitRepository fits;
+    private final RefitLocks locks;
     private final FitService fitService;
+    private final ServiceMetrics metrics;
     private final ScheduledExecutorService executor;
     private final Clock clock;
     private final Duration tick;
 
-    public RefitScheduler(ModelRepository models, FitRepository fits, FitService fitService, ScheduledExecutorService executor,
-                          Clock clock, Duration tick) {
+    public RefitScheduler(ModelRepository models, FitRepository fits, RefitLocks locks, FitService fitService, ServiceMetrics metrics,
+                          ScheduledExecutorService executor, Clock clock, Duration tick) {
         if (tick.isNegative() || tick.isZero()) throw new IllegalArgumentException("tick must be positive, was " + tick);
         this.models = models;
         this.fits = fits;
+        this.locks = locks;
         this.fitService = fitService;
+        this.metrics = metrics;
         this.executor = executor;
         this.clock = clock;
         this.tick = tick;
@@ -62,15 +71,31 @@ public final class RefitScheduler implements IngestListener {
         int runs = 0;
         for (ModelRow m : models.list()) {
             if (Thread.currentThread().isInterrupted()) break;
-            if (m.refitEverySeconds() == null) continue;
-            Instant now = ModelService.now(clock);
-            Instant last = later(m.lastRefitAt(), fits.lastAttemptAt(m.id()).orElse(null));
-            if (last != null && now.isBefore(last.plusSeconds(m.refitEverySeconds()))) continue;
-            if (!models.claimRefit(m.id(), m.lastRefitAt(), now)) continue;
-            runs++;
-            runFit(m.name(), FitService.SCHEDULE);
+            if (m.refitEverySeconds() == null || !isDue(m, ModelService.now(clock))) continue;
+            Optional<RefitLocks.Claim> claim = locks.tryClaim(m.id());
+            metrics.refitClaim(m.name(), claim.isPresent());
+            if (claim.isEmpty()) continue;
+            try (RefitLocks.Claim held = claim.get()) {
+                // Checked again under the claim: another instance may have finished this run a moment ago.
+                Optional<ModelRow> fresh = models.find(m.name());
+                Instant now = ModelService.now(clock);
+                if (fresh.isEmpty() || fresh.get().id() != m.id() || !isDue(fresh.get(), now)) continue;
+                if (!models.claimRefit(m.id(), fresh.get().lastRefitAt(), now)) continue;
+                runs++;
+                runFit(m.name(), FitService.SCHEDULE);
+            }
         }
         return runs;
+    }
+
+    /**
+     * Due when the model was never fitted, or its last attempt (ok or failed, any origin) started a
+     * period or more ago. Only attempts count, not claims: a run whose instance died before storing
+     * anything left no attempt, so the next check on any instance runs it.
+     */
+    private boolean isDue(ModelRow m, Instant now) {
+        Instant last = fits.lastAttemptAt(m.id()).orElse(null);
+        return last == null || !now.isBefore(last.plusSeconds(m.refitEverySeconds()));
     }
 
     /** Ingest hook: when the panel gained a new last date, fits each model on it that asks for it, in the background. */
@@ -107,11 +132,5 @@ public final class RefitScheduler implements IngestListener {
             if (e instanceof InterruptedException || e.getCause() instanceof InterruptedException) Thread.currentThread().interrupt();
             LOG.error("{} fit of model {} failed; the served fit stays", origin, model, e);
         }
-    }
-
-    private static Instant later(Instant a, Instant b) {
-        if (a == null) return b;
-        if (b == null) return a;
-        return a.isAfter(b) ? a : b;
     }
 }

@@ -2,6 +2,7 @@ package eigencov.store;
 
 import com.zaxxer.hikari.HikariConfig;
 import com.zaxxer.hikari.HikariDataSource;
+import com.zaxxer.hikari.metrics.MetricsTrackerFactory;
 
 import javax.sql.DataSource;
 import java.sql.Connection;
@@ -33,6 +34,11 @@ public final class Database implements AutoCloseable {
      * @throws StoreException when the database cannot be reached or a migration fails
      */
     public static Database open(String jdbcUrl, String user, String password, int maxPoolSize) {
+        return open(jdbcUrl, user, password, maxPoolSize, null);
+    }
+
+    /** As above, reporting pool usage to {@code poolMetrics} (null: none). */
+    public static Database open(String jdbcUrl, String user, String password, int maxPoolSize, MetricsTrackerFactory poolMetrics) {
         Dialect dialect = dialectOf(jdbcUrl);
         HikariConfig cfg = new HikariConfig();
         cfg.setJdbcUrl(jdbcUrl);
@@ -45,6 +51,7 @@ public final class Database implements AutoCloseable {
         cfg.setInitializationFailTimeout(10_000);
         cfg.setConnectionTimeout(5_000);
         cfg.setValidationTimeout(2_000);
+        if (poolMetrics != null) cfg.setMetricsTrackerFactory(poolMetrics);
         if (dialect == Dialect.H2) {
             // H2 waits only 1 s for a row lock by default; an upload serialised behind another
             // upload into the same panel must wait for it instead of failing.

@@ -30,6 +30,9 @@ final class Migrations {
             "V1__panels.sql",
             "V2__models_fits.sql");
 
+    /** PostgreSQL advisory lock key that serialises migration appliers (any fixed number unused elsewhere). */
+    static final long LOCK_KEY = 727274;
+
     private final DataSource ds;
     private final Database.Dialect dialect;
 
@@ -40,10 +43,7 @@ final class Migrations {
 
     void migrate() {
         try (Connection c = ds.getConnection()) {
-            try (Statement s = c.createStatement()) {
-                s.execute("CREATE TABLE IF NOT EXISTS schema_version (version INT PRIMARY KEY, script VARCHAR(200) NOT NULL, "
-                        + "applied_at TIMESTAMP WITH TIME ZONE DEFAULT CURRENT_TIMESTAMP NOT NULL)");
-            }
+            createVersionTable(c);
             int current = currentVersion(c);
             for (String script : SCRIPTS) {
                 int version = versionOf(script);
@@ -55,6 +55,27 @@ final class Migrations {
         }
     }
 
+    /**
+     * On PostgreSQL, {@code CREATE TABLE IF NOT EXISTS} is not safe against a concurrent twin (both
+     * see no table, the second fails on the catalog's unique index), so it runs under the same
+     * advisory lock as the migrations.
+     */
+    private void createVersionTable(Connection c) throws SQLException {
+        boolean auto = c.getAutoCommit();
+        c.setAutoCommit(false);
+        try (Statement s = c.createStatement()) {
+            if (dialect == Database.Dialect.POSTGRESQL) s.execute("SELECT pg_advisory_xact_lock(" + LOCK_KEY + ")");
+            s.execute("CREATE TABLE IF NOT EXISTS schema_version (version INT PRIMARY KEY, script VARCHAR(200) NOT NULL, "
+                    + "applied_at TIMESTAMP WITH TIME ZONE DEFAULT CURRENT_TIMESTAMP NOT NULL)");
+            c.commit();
+        } catch (SQLException e) {
+            c.rollback();
+            throw e;
+        } finally {
+            c.setAutoCommit(auto);
+        }
+    }
+
     private void apply(Connection c, int version, String script) throws SQLException {
         String sql = read(script);
         boolean auto = c.getAutoCommit();
@@ -62,7 +83,7 @@ final class Migrations {
         try (Statement s = c.createStatement()) {
             if (dialect == Database.Dialect.POSTGRESQL) {
                 // Serialises concurrent appliers (several instances starting together).
-                s.execute("SELECT pg_advisory_xact_lock(727274)");
+                s.execute("SELECT pg_advisory_xact_lock(" + LOCK_KEY + ")");
             }
             if (currentVersion(c) >= version) {
                 c.rollback();

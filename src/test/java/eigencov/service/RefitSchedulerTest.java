@@ -1,10 +1,16 @@
 package eigencov.service;
 
+import eigencov.store.Database;
 import eigencov.store.FitRow;
 import eigencov.store.ModelRepository;
+import eigencov.store.RefitLocks;
 import org.junit.jupiter.api.AfterEach;
 import org.junit.jupiter.api.Test;
 
+import java.sql.Connection;
+import java.sql.PreparedStatement;
+import java.sql.ResultSet;
+import java.sql.SQLException;
 import java.time.Duration;
 import java.time.Instant;
 import java.time.LocalDate;
@@ -16,6 +22,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertSame;
 import static org.junit.jupiter.api.Assertions.assertTrue;
+import static org.junit.jupiter.api.Assumptions.assumeTrue;
 
 class RefitSchedulerTest {
     private final String dbName = "scheduler-" + System.nanoTime();
@@ -30,7 +37,7 @@ class RefitSchedulerTest {
     }
 
     private RefitScheduler scheduler(ServiceFixture f) {
-        return new RefitScheduler(f.modelRepo, f.fitRepo, f.fits, executor, clock, RefitScheduler.DEFAULT_TICK);
+        return new RefitScheduler(f.modelRepo, f.fitRepo, f.refitLocks, f.fits, ServiceMetrics.NONE, executor, clock, RefitScheduler.DEFAULT_TICK);
     }
 
     @Test
@@ -44,7 +51,7 @@ class RefitSchedulerTest {
         assertEquals(0, first.runDueRefits());
 
         clock.advance(Duration.ofHours(5)); // the process was down for five periods
-        try (ServiceFixture restarted = new ServiceFixture(dbName, clock)) {
+        try (ServiceFixture restarted = fx.sameStore()) {
             RefitScheduler again = scheduler(restarted);
             assertEquals(1, again.runDueRefits());
             assertEquals(0, again.runDueRefits());
@@ -60,7 +67,7 @@ class RefitSchedulerTest {
     void of_two_instances_only_one_claims_a_due_refit() {
         fx.panel("p", 8, 40, 2);
         fx.models.put("m", ServiceFixture.spec("p", 30, "PT1H", false));
-        try (ServiceFixture other = new ServiceFixture(dbName, clock)) {
+        try (ServiceFixture other = fx.sameStore()) {
             long id = fx.modelRepo.find("m").orElseThrow().id();
             ModelRepository a = fx.modelRepo;
             ModelRepository b = other.modelRepo;
@@ -115,5 +122,56 @@ class RefitSchedulerTest {
         assertEquals(FitService.INGEST, fits.get(0).origin());
         assertEquals(dates.get(39).plusDays(3), fits.get(0).window().to());
         assertEquals(0, fx.fits.list("ignores").size());
+    }
+
+    private long dueModel() {
+        fx.panel("p", 8, 40, 5);
+        fx.models.put("m", ServiceFixture.spec("p", 30, "PT1H", false));
+        return fx.modelRepo.find("m").orElseThrow().id();
+    }
+
+    @Test
+    void a_due_refit_whose_claim_is_held_is_left_to_the_holder_and_run_once_released() {
+        long id = dueModel();
+        RefitLocks.Claim running = fx.refitLocks.tryClaim(id).orElseThrow();
+        assertEquals(0, scheduler(fx).runDueRefits(), "another run holds the claim");
+        assertEquals(List.of(), fx.fits.list("m"), "nothing stored while the holder runs");
+        running.close();
+        assertEquals(1, scheduler(fx).runDueRefits());
+        assertEquals(0, scheduler(fx).runDueRefits(), "done: not due again within the period");
+    }
+
+    @Test
+    void a_refit_claimed_by_an_instance_that_died_is_run_by_another_on_its_next_check() throws SQLException {
+        assumeTrue(fx.db.dialect() == Database.Dialect.POSTGRESQL, "several instances share a database only on PostgreSQL");
+        long id = dueModel();
+        try (ServiceFixture other = fx.sameStore()) {
+            RefitLocks.Claim dying = fx.refitLocks.tryClaim(id).orElseThrow();
+            RefitScheduler survivor = scheduler(other);
+            assertEquals(0, survivor.runDueRefits(), "the first instance is running it");
+
+            // The first instance dies mid-refit: its database session ends, taking the claim along.
+            terminateHolder(other.db, id);
+            int runs = 0;
+            for (int check = 0; check < 200 && runs == 0; check++) runs = survivor.runDueRefits();
+            assertEquals(1, runs, "the survivor ran the refit once the claim was gone");
+            List<FitView> history = other.fits.list("m");
+            assertEquals(1, history.size());
+            assertEquals(FitRow.OK, history.get(0).status());
+            assertEquals(FitService.SCHEDULE, history.get(0).origin());
+            dying.close();
+            assertEquals(0, survivor.runDueRefits(), "not due again, and the dead claim's release frees nothing");
+        }
+    }
+
+    private static void terminateHolder(Database db, long modelId) throws SQLException {
+        try (Connection c = db.dataSource().getConnection();
+             PreparedStatement p = c.prepareStatement("SELECT pg_terminate_backend(pid) FROM pg_locks "
+                     + "WHERE locktype = 'advisory' AND objid = ? AND granted")) {
+            p.setLong(1, modelId);
+            try (ResultSet rs = p.executeQuery()) {
+                assertTrue(rs.next() && rs.getBoolean(1), "the holder's session was found and ended");
+            }
+        }
     }
 }

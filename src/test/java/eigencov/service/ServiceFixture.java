@@ -1,12 +1,14 @@
 package eigencov.service;
 
 import com.fasterxml.jackson.databind.ObjectMapper;
+import eigencov.app.AppConfig;
 import eigencov.http.HttpApi;
 import eigencov.math.FactorFitter;
 import eigencov.store.Database;
 import eigencov.store.FitRepository;
 import eigencov.store.ModelRepository;
 import eigencov.store.PanelStore;
+import eigencov.store.RefitLocks;
 
 import java.io.ByteArrayInputStream;
 import java.nio.charset.StandardCharsets;
@@ -15,8 +17,8 @@ import java.time.LocalDate;
 import java.util.List;
 
 /**
- * The services of one instance wired by hand over an in-memory H2 store, as App does. A second
- * fixture on the same database name plays a restarted process or another instance.
+ * The services of one instance wired by hand over a test store, as App does. {@link #sameStore()}
+ * gives a second fixture on the same store: a restarted process or another instance.
  */
 final class ServiceFixture implements AutoCloseable {
     final Database db;
@@ -29,13 +31,18 @@ final class ServiceFixture implements AutoCloseable {
     final FitService fits;
     final ModelService models;
     final Clock clock;
+    final RefitLocks refitLocks;
+    private final String url;
 
+    /** A fixture on a fresh store (in-memory H2, or a fresh PostgreSQL schema on the PostgreSQL test run). */
     ServiceFixture(String dbName, Clock clock) {
-        this(Database.open("jdbc:h2:mem:" + dbName + ";DB_CLOSE_DELAY=-1", "", "", 4), clock);
+        this(clock, AppConfig.forTest(dbName).dbUrl());
     }
 
-    private ServiceFixture(Database db, Clock clock) {
-        this.db = db;
+    private ServiceFixture(Clock clock, String url) {
+        this.url = url;
+        this.db = Database.open(url, "", "", 4);
+        this.refitLocks = new RefitLocks(db);
         this.clock = clock;
         modelRepo = new ModelRepository(db.dataSource());
         fitRepo = new FitRepository(db.dataSource());
@@ -44,6 +51,11 @@ final class ServiceFixture implements AutoCloseable {
         fits = new FitService(modelRepo, fitRepo, windows, served, new FitCodec(mapper), new FactorFitter(null), mapper, clock);
         models = new ModelService(modelRepo, fitRepo, windows, served, mapper, clock);
         panels = new PanelService(windows, 10, (panel, before, after) -> { });
+    }
+
+    /** Another fixture on this fixture's store: a restarted process, or a second instance. */
+    ServiceFixture sameStore() {
+        return new ServiceFixture(clock, url);
     }
 
     /** Upserts {@code rows} into {@code panel} through the ingest service, as an upload would. */

@@ -1,28 +1,17 @@
 package eigencov.store;
 
-import java.sql.Connection;
-import java.sql.DriverManager;
-import java.sql.SQLException;
-import java.sql.Statement;
+import eigencov.app.AppConfig;
 
 /**
- * Opens the store a store test runs on: H2 in memory by default; with
- * {@code -Deigencov.test.postgres=jdbc:postgresql://HOST/DB?user=U} a fresh schema of that
- * PostgreSQL database named after the test, so the same tests check the SQL on both.
+ * Opens the store a store test runs on: whatever {@link AppConfig#forTest(String)} gives, so the
+ * store tests run on H2 in memory in the first pass of {@code mvn verify} and on a fresh
+ * PostgreSQL schema in the second.
  */
 final class TestStores {
     private TestStores() {
     }
 
     static Database open(String name) {
-        String pg = System.getProperty("eigencov.test.postgres", "");
-        if (pg.isEmpty()) return Database.open("jdbc:h2:mem:" + name + ";DB_CLOSE_DELAY=-1", "", "", 4);
-        try (Connection c = DriverManager.getConnection(pg); Statement s = c.createStatement()) {
-            s.execute("DROP SCHEMA IF EXISTS " + name + " CASCADE");
-            s.execute("CREATE SCHEMA " + name);
-        } catch (SQLException e) {
-            throw new IllegalStateException("cannot prepare schema " + name + " on " + pg, e);
-        }
-        return Database.open(pg + (pg.contains("?") ? "&" : "?") + "currentSchema=" + name, "", "", 4);
+        return Database.open(AppConfig.forTest(name).dbUrl(), "", "", 4);
     }
 }

@@ -1,0 +1,146 @@
+package eigencov.app;
+
+import com.zaxxer.hikari.metrics.MetricsTrackerFactory;
+import com.zaxxer.hikari.metrics.micrometer.MicrometerMetricsTrackerFactory;
+import eigencov.service.ServiceMetrics;
+import io.micrometer.core.instrument.Counter;
+import io.micrometer.core.instrument.MeterRegistry;
+import io.micrometer.core.instrument.Timer;
+import io.micrometer.core.instrument.binder.jvm.ClassLoaderMetrics;
+import io.micrometer.core.instrument.binder.jvm.JvmGcMetrics;
+import io.micrometer.core.instrument.binder.jvm.JvmMemoryMetrics;
+import io.micrometer.core.instrument.binder.jvm.JvmThreadMetrics;
+import io.micrometer.core.instrument.binder.system.ProcessorMetrics;
+import io.micrometer.core.instrument.binder.system.UptimeMetrics;
+import io.micrometer.prometheusmetrics.PrometheusConfig;
+import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
+
+import java.time.Duration;
+import java.util.Locale;
+import java.util.concurrent.TimeUnit;
+
+/**
+ * What one eigencov process tells its operators on {@code GET /metrics} (Prometheus text format).
+ * A small facade over one Micrometer registry per process (never the global one), so services call
+ * {@code rowsIngested(..)} or {@code fitCompleted(..)} and never see meter names or tags.
+ *
+ * <p>Meters (Prometheus names):
+ * <ul>
+ * <li>{@code http_server_requests_seconds} histogram by {@code method}, {@code route} (the route
+ *     template, {@code unmatched} for 404s without a route), {@code status}</li>
+ * <li>{@code eigencov_rows_ingested_total} by {@code panel}</li>
+ * <li>{@code eigencov_fit_duration_seconds} histogram by {@code model} (completed fits)</li>
+ * <li>{@code eigencov_fit_failures_total} by {@code model}, {@code reason} (a short category)</li>
+ * <li>{@code eigencov_refit_claims_total} by {@code model}, {@code outcome} ({@code won}: this instance
+ *     runs the scheduled refit; {@code taken}: another instance holds it)</li>
+ * <li>{@code hikaricp_connections_*} pool usage and acquire times (HikariCP's own tracker)</li>
+ * <li>{@code jvm_*}, {@code process_*}, {@code system_*}: memory, GC, threads, classes, CPU, uptime</li>
+ * </ul>
+ * Tag values that come from users (panel and model names) are bounded by the names that exist.
+ */
+public final class Metrics implements ServiceMetrics, AutoCloseable {
+    /** Prometheus text exposition format, version 0.0.4. */
+    public static final String CONTENT_TYPE = "text/plain; version=0.0.4; charset=utf-8";
+
+    /** Latency buckets for HTTP: 1 ms (a small covariance from memory) to 30 s (a 1,000,000-row ingest). */
+    private static final Duration[] HTTP_BUCKETS = durations(1, 2, 5, 10, 25, 50, 100, 250, 500, 1_000, 2_500, 5_000, 10_000, 30_000);
+    /** Fit buckets: 50 ms (a small demo model) to 10 min (a 3,000-name refit on a busy machine). */
+    private static final Duration[] FIT_BUCKETS = durations(50, 100, 250, 500, 1_000, 2_500, 5_000, 10_000, 30_000, 60_000, 300_000, 600_000);
+
+    private final PrometheusMeterRegistry registry;
+    private final JvmGcMetrics gc;
+
+    public Metrics() {
+        this.registry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
+        new JvmMemoryMetrics().bindTo(registry);
+        new JvmThreadMetrics().bindTo(registry);
+        new ClassLoaderMetrics().bindTo(registry);
+        new ProcessorMetrics().bindTo(registry);
+        new UptimeMetrics().bindTo(registry);
+        this.gc = new JvmGcMetrics();
+        gc.bindTo(registry);
+    }
+
+    /** The registry, for libraries that bring their own Micrometer binding. */
+    public MeterRegistry registry() {
+        return registry;
+    }
+
+    /** Everything in Prometheus text format ({@link #CONTENT_TYPE}). */
+    public String scrape() {
+        return registry.scrape();
+    }
+
+    /** HikariCP's pool meters, registered here once the pool starts. */
+    public MetricsTrackerFactory poolTracker() {
+        return new MicrometerMetricsTrackerFactory(registry);
+    }
+
+    /**
+     * One finished HTTP request.
+     *
+     * @param route the route template ({@code /v1/models/{model}/covariance}), never the raw path
+     */
+    public void httpRequest(String method, String route, int status, long durationNanos) {
+        Timer.builder("http.server.requests")
+                .description("HTTP requests by route template and status")
+                .tags("method", method, "route", route, "status", Integer.toString(status))
+                .serviceLevelObjectives(HTTP_BUCKETS)
+                .register(registry)
+                .record(durationNanos, TimeUnit.NANOSECONDS);
+    }
+
+    /** Rows stored by a committed ingest (inserted plus updated). */
+    @Override
+    public void rowsIngested(String panel, long rows) {
+        if (rows < 0) throw new IllegalArgumentException("rows must not be negative, was " + rows);
+        Counter.builder("eigencov.rows.ingested").description("return rows stored by committed ingests")
+                .tag("panel", panel).register(registry).increment(rows);
+    }
+
+    /** A fit stored completely; {@code durationMs} from loading the window to the stored fit. */
+    @Override
+    public void fitCompleted(String model, long durationMs) {
+        if (durationMs < 0) throw new IllegalArgumentException("durationMs must not be negative, was " + durationMs);
+        Timer.builder("eigencov.fit.duration").description("completed fits, load to stored")
+                .tag("model", model).serviceLevelObjectives(FIT_BUCKETS).register(registry)
+                .record(durationMs, TimeUnit.MILLISECONDS);
+    }
+
+    /**
+     * A fit that did not complete (the served fit stayed in place).
+     *
+     * @param reason a short category such as {@code store}, {@code too-few-dates}, {@code numeric};
+     *               anything else is folded to {@code other} so the series stay few
+     */
+    @Override
+    public void fitFailed(String model, String reason) {
+        Counter.builder("eigencov.fit.failures").description("fits that failed, by reason category")
+                .tags("model", model, "reason", category(reason)).register(registry).increment();
+    }
+
+    /** A scheduled refit that this instance did ({@code won}) or did not ({@code false}: another instance holds it) claim. */
+    @Override
+    public void refitClaim(String model, boolean won) {
+        Counter.builder("eigencov.refit.claims").description("scheduled refit claims on the shared store")
+                .tags("model", model, "outcome", won ? "won" : "taken").register(registry).increment();
+    }
+
+    static String category(String reason) {
+        if (reason == null) return "other";
+        String r = reason.toLowerCase(Locale.ROOT);
+        return r.matches("[a-z][a-z0-9_-]{0,31}") ? r : "other";
+    }
+
+    private static Duration[] durations(long... millis) {
+        Duration[] out = new Duration[millis.length];
+        for (int i = 0; i < millis.length; i++) out[i] = Duration.ofMillis(millis[i]);
+        return out;
+    }
+
+    @Override
+    public void close() {
+        gc.close();
+        registry.close();
+    }
+}
