@@ -47,7 +47,7 @@ final class QueryResponses {
                 g.bool("correlation", a.correlation());
                 g.strings("tickers", a.tickers());
                 g.strings("omitted", a.omitted());
-                g.rows("matrix", m, n, n);
+                g.symmetricRows("matrix", m, n);
             });
             case CSV -> {
                 omittedHeader(ctx, a.omitted());

@@ -186,22 +186,45 @@ final class ShortestDouble {
         return pos;
     }
 
-    /** The decimal digits of f > 0, ending just before {@code end}. */
+    /**
+     * The decimal digits of f > 0, ending just before {@code end}: eight digits at a time with one
+     * long division, then int arithmetic (long division by 100 per digit pair was the slowest part).
+     */
     private static void digits(long f, byte[] buf, int end) {
         int i = end;
-        while (f >= 100) {
-            long q = f / 100;
-            int r = (int) (f - q * 100);
-            buf[--i] = DIGIT_PAIRS[2 * r + 1];
-            buf[--i] = DIGIT_PAIRS[2 * r];
+        while (f >= 100_000_000L) {
+            long q = f / 100_000_000L;
+            int r = (int) (f - q * 100_000_000L);
+            int hi = r / 10_000;
+            fourDigits(r - hi * 10_000, buf, i - 4);
+            fourDigits(hi, buf, i - 8);
+            i -= 8;
             f = q;
         }
-        if (f >= 10) {
-            buf[--i] = DIGIT_PAIRS[2 * (int) f + 1];
-            buf[--i] = DIGIT_PAIRS[2 * (int) f];
-        } else {
-            buf[--i] = (byte) ('0' + f);
+        int v = (int) f;
+        while (v >= 100) {
+            int q = v / 100;
+            int r = v - q * 100;
+            buf[--i] = DIGIT_PAIRS[2 * r + 1];
+            buf[--i] = DIGIT_PAIRS[2 * r];
+            v = q;
         }
+        if (v >= 10) {
+            buf[--i] = DIGIT_PAIRS[2 * v + 1];
+            buf[--i] = DIGIT_PAIRS[2 * v];
+        } else {
+            buf[--i] = (byte) ('0' + v);
+        }
+    }
+
+    /** The four digits of 0 <= v < 10,000 (with leading zeros) at buf[at..at+3]. */
+    private static void fourDigits(int v, byte[] buf, int at) {
+        int hi = v / 100;
+        int lo = v - hi * 100;
+        buf[at] = DIGIT_PAIRS[2 * hi];
+        buf[at + 1] = DIGIT_PAIRS[2 * hi + 1];
+        buf[at + 2] = DIGIT_PAIRS[2 * lo];
+        buf[at + 3] = DIGIT_PAIRS[2 * lo + 1];
     }
 
     /** floor(e log10(2)) for |e| <= 5,456,721. */

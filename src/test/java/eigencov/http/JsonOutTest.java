@@ -67,13 +67,7 @@ class JsonOutTest {
                 j.writeEndObject();
             }
             j.writeEndArray();
-            j.writeArrayFieldStart("matrix");
-            for (int r = 0; r < 2; r++) {
-                j.writeStartArray();
-                for (int c = 0; c < 3; c++) j.writeNumber(r * 3 + c + 1.0);
-                j.writeEndArray();
-            }
-            j.writeEndArray();
+            jacksonRows(j, new double[] {1, 2, 3, 4, 5, 6}, 2, 3);
             j.writeEndObject();
         });
     }
@@ -86,15 +80,42 @@ class JsonOutTest {
         for (int i = 0; i < m.length; i++) m[i] = rnd.nextGaussian() * 1e-4;
         assertSameBytes(g -> g.startObject().rows("matrix", m, n, n).endObject(), j -> {
             j.writeStartObject();
-            j.writeArrayFieldStart("matrix");
-            for (int r = 0; r < n; r++) {
-                j.writeStartArray();
-                for (int c = 0; c < n; c++) j.writeNumber(m[r * n + c]);
-                j.writeEndArray();
-            }
-            j.writeEndArray();
+            jacksonRows(j, m, n, n);
             j.writeEndObject();
         });
+    }
+
+    @Test
+    void writes_a_symmetric_matrix_as_jackson_does_even_where_mirrors_differ() throws IOException {
+        SplittableRandom rnd = new SplittableRandom(11L);
+        for (int n : new int[] {0, 1, 2, 37}) {
+            double[] m = new double[n * n];
+            for (int r = 0; r < n; r++) {
+                for (int c = 0; c <= r; c++) {
+                    double v = rnd.nextGaussian() * 1e-4;
+                    m[r * n + c] = v;
+                    // most mirrors equal; some differ in the last bit (as a correlation matrix's may), some are not finite
+                    int kind = rnd.nextInt(10);
+                    m[c * n + r] = kind == 0 ? Math.nextUp(v) : kind == 1 ? Double.NaN : v;
+                }
+            }
+            assertSameBytes(g -> g.startObject().symmetricRows("matrix", m, n).endObject(), j -> {
+                j.writeStartObject();
+                jacksonRows(j, m, n, n);
+                j.writeEndObject();
+            });
+        }
+    }
+
+    /** "matrix": rows x cols as arrays of rows, through Jackson. */
+    private static void jacksonRows(JsonGenerator j, double[] m, int rows, int cols) throws IOException {
+        j.writeArrayFieldStart("matrix");
+        for (int r = 0; r < rows; r++) {
+            j.writeStartArray();
+            for (int c = 0; c < cols; c++) j.writeNumber(m[r * cols + c]);
+            j.writeEndArray();
+        }
+        j.writeEndArray();
     }
 
     private interface Ours {
