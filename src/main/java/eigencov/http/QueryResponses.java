@@ -25,7 +25,7 @@ import java.util.List;
  * Writes query answers as JSON, CSV or {@code .npy}. JSON is streamed with {@link JsonOut} (the
  * bytes Jackson's generator with the fast double writer would give, at a fraction of its cost)
  * straight to the response, with no intermediate tree; CSV numbers use Jackson's shortest-repr
- * writer, the same digits; {@code .npy} is one buffer (see {@link Npy}).
+ * writer, the same digits; {@code .npy} is streamed through a small buffer (see {@link Npy}).
  *
  * <p>Formats: JSON matrices are arrays of rows. CSV has a header row; a covariance matrix's first
  * column is the ticker. {@code .npy} rows follow the answered tickers (or dates), listed in the
@@ -64,7 +64,7 @@ final class QueryResponses {
             case NPY -> {
                 ResponseSender.listHeader(ctx, "X-Tickers", a.tickers());
                 omittedHeader(ctx, a.omitted());
-                ResponseSender.sendBytes(ctx, a.fit(), rep, key, Npy.matrix(n, n, m));
+                ResponseSender.sendBinary(ctx, a.fit(), rep, key, Npy.length(n, n), out -> Npy.write(out, n, n, m));
             }
         }
     }
@@ -127,7 +127,7 @@ final class QueryResponses {
                 ctx.header("X-Columns", String.join(",", columns));
                 ResponseSender.listHeader(ctx, "X-Tickers", a.tickers());
                 omittedHeader(ctx, a.omitted());
-                ResponseSender.sendBytes(ctx, a.fit(), rep, key, Npy.matrix(n, k + 1, out));
+                ResponseSender.sendBinary(ctx, a.fit(), rep, key, Npy.length(n, k + 1), o -> Npy.write(o, n, k + 1, out));
             }
         }
     }
@@ -166,7 +166,7 @@ final class QueryResponses {
             });
             case NPY -> {
                 ResponseSender.listHeader(ctx, "X-Dates", a.dates().stream().map(Object::toString).toList());
-                ResponseSender.sendBytes(ctx, a.fit(), rep, key, Npy.matrix(t, k, v));
+                ResponseSender.sendBinary(ctx, a.fit(), rep, key, Npy.length(t, k), out -> Npy.write(out, t, k, v));
             }
         }
     }
