@@ -2,6 +2,7 @@ package eigencov.http;
 
 import java.io.IOException;
 import java.io.OutputStream;
+import java.nio.DoubleBuffer;
 import java.nio.charset.StandardCharsets;
 import java.util.Arrays;
 import java.util.List;
@@ -156,10 +157,19 @@ final class JsonOut implements AutoCloseable {
      * whose mirror above it has the same bits is copied from the mirror's rendering instead of being
      * rendered again, which halves the number formatting of a covariance matrix (the benchmark's
      * largest cost). The output is that of {@link #rows} in every case. Keeps the upper triangle's
-     * text, about 11 MB at {@link #MAX_SYMMETRIC_REUSE} names; larger matrices go through {@link #rows}.
+     * text, about 11 MB at {@link #MAX_SYMMETRIC_REUSE} names; larger matrices are rendered entry by entry.
+     * Reads {@code m} by absolute index (its position is ignored).
      */
-    JsonOut symmetricRows(String field, double[] m, int n) throws IOException {
-        if (n > MAX_SYMMETRIC_REUSE) return rows(field, m, n, n);
+    JsonOut symmetricRows(String field, DoubleBuffer m, int n) throws IOException {
+        if (n > MAX_SYMMETRIC_REUSE) {
+            startArray(field);
+            for (int r = 0; r < n; r++) {
+                startArray();
+                for (int c = 0; c < n; c++) number(m.get(r * n + c));
+                endArray();
+            }
+            return endArray();
+        }
         int[] start = new int[n * (n - 1) / 2 + 1]; // upper entry t's text is text[start[t] .. start[t + 1])
         byte[] text = new byte[Math.max(64, n * (n - 1) / 2 * 20)];
         int t = 0; // upper entries are numbered in row order
@@ -168,8 +178,8 @@ final class JsonOut implements AutoCloseable {
             startArray();
             int row = r * n;
             for (int c = 0; c < n; c++) {
-                double v = m[row + c];
-                if (c < r && Double.doubleToRawLongBits(v) == Double.doubleToRawLongBits(m[c * n + r]) && Double.isFinite(v)) {
+                double v = m.get(row + c);
+                if (c < r && Double.doubleToRawLongBits(v) == Double.doubleToRawLongBits(m.get(c * n + r)) && Double.isFinite(v)) {
                     int u = c * (2 * n - c - 1) / 2 + (r - c - 1);
                     int len = start[u + 1] - start[u];
                     separator();

@@ -34,14 +34,23 @@ final class Npy {
      * through one 64 KB buffer: no copy of the whole matrix is made.
      */
     static void write(OutputStream out, int rows, int cols, double[] values) throws IOException {
-        if ((long) rows * cols != values.length) throw new IllegalArgumentException("values length " + values.length + " != " + rows + " x " + cols);
+        write(out, rows, cols, DoubleBuffer.wrap(values));
+    }
+
+    /** As {@link #write(OutputStream, int, int, double[])}, reading the values from {@code values}' position on. */
+    static void write(OutputStream out, int rows, int cols, DoubleBuffer values) throws IOException {
+        if ((long) rows * cols != values.remaining()) {
+            throw new IllegalArgumentException("values length " + values.remaining() + " != " + rows + " x " + cols);
+        }
         out.write(header(rows, cols));
         byte[] chunk = new byte[CHUNK_DOUBLES * 8];
         DoubleBuffer doubles = ByteBuffer.wrap(chunk).order(ByteOrder.LITTLE_ENDIAN).asDoubleBuffer();
-        for (int off = 0; off < values.length; off += CHUNK_DOUBLES) {
-            int len = Math.min(CHUNK_DOUBLES, values.length - off);
+        DoubleBuffer src = values.duplicate();
+        while (src.hasRemaining()) {
+            int len = Math.min(CHUNK_DOUBLES, src.remaining());
             doubles.clear();
-            doubles.put(values, off, len);
+            doubles.put(src.slice().limit(len));
+            src.position(src.position() + len);
             out.write(chunk, 0, len * 8);
         }
     }

@@ -17,6 +17,7 @@ import java.io.IOException;
 import java.io.OutputStream;
 import java.io.OutputStreamWriter;
 import java.io.Writer;
+import java.nio.DoubleBuffer;
 import java.nio.charset.StandardCharsets;
 import java.util.ArrayList;
 import java.util.List;
@@ -38,7 +39,7 @@ final class QueryResponses {
 
     void covarianceMatrix(Context ctx, Representation rep, CovarianceMatrix a, String key) {
         int n = a.tickers().size();
-        double[] m = a.matrix();
+        DoubleBuffer m = a.matrixView();
         long size = (long) n * n * BYTES_PER_NUMBER;
         switch (rep) {
             case JSON -> json(ctx, a.fit(), key, size, g -> {
@@ -51,13 +52,14 @@ final class QueryResponses {
             });
             case CSV -> {
                 omittedHeader(ctx, a.omitted());
+                double[] values = a.matrix();
                 csv(ctx, a.fit(), key, size, w -> {
                     w.write("ticker");
                     for (String t : a.tickers()) w.append(',').write(t);
                     w.write('\n');
                     for (int r = 0; r < n; r++) {
                         w.write(a.tickers().get(r));
-                        csvRow(w, m, r * n, n);
+                        csvRow(w, values, r * n, n);
                     }
                 });
             }
