@@ -1,7 +1,10 @@
 package eigencov.http;
 
+import java.io.IOException;
+import java.io.OutputStream;
 import java.nio.ByteBuffer;
 import java.nio.ByteOrder;
+import java.nio.DoubleBuffer;
 import java.nio.charset.StandardCharsets;
 
 /**
@@ -16,21 +19,51 @@ final class Npy {
     static final String MEDIA_TYPE = "application/x-npy";
     private static final byte[] MAGIC = {(byte) 0x93, 'N', 'U', 'M', 'P', 'Y', 1, 0};
     private static final int ALIGN = 64;
+    private static final int CHUNK_DOUBLES = 8 * 1024;
 
     private Npy() {
     }
 
-    /** The whole file for a {@code rows x cols} matrix (row-major {@code values}), in one buffer. */
-    static byte[] matrix(int rows, int cols, double[] values) {
-        if ((long) rows * cols != values.length) throw new IllegalArgumentException("values length " + values.length + " != " + rows + " x " + cols);
+    /** Length in bytes of the file of a {@code rows x cols} matrix. */
+    static long length(int rows, int cols) {
+        return header(rows, cols).length + 8L * rows * cols;
+    }
+
+    /**
+     * Writes the file of a {@code rows x cols} matrix (row-major {@code values}) to {@code out},
+     * through one 64 KB buffer: no copy of the whole matrix is made.
+     */
+    static void write(OutputStream out, int rows, int cols, double[] values) throws IOException {
+        write(out, rows, cols, DoubleBuffer.wrap(values));
+    }
+
+    /** As {@link #write(OutputStream, int, int, double[])}, reading the values from {@code values}' position on. */
+    static void write(OutputStream out, int rows, int cols, DoubleBuffer values) throws IOException {
+        if ((long) rows * cols != values.remaining()) {
+            throw new IllegalArgumentException("values length " + values.remaining() + " != " + rows + " x " + cols);
+        }
+        out.write(header(rows, cols));
+        byte[] chunk = new byte[CHUNK_DOUBLES * 8];
+        DoubleBuffer doubles = ByteBuffer.wrap(chunk).order(ByteOrder.LITTLE_ENDIAN).asDoubleBuffer();
+        DoubleBuffer src = values.duplicate();
+        while (src.hasRemaining()) {
+            int len = Math.min(CHUNK_DOUBLES, src.remaining());
+            doubles.clear();
+            doubles.put(src.slice().limit(len));
+            src.position(src.position() + len);
+            out.write(chunk, 0, len * 8);
+        }
+    }
+
+    /** Magic, version, header length and the padded header dictionary. */
+    private static byte[] header(int rows, int cols) {
         String dict = "{'descr': '<f8', 'fortran_order': False, 'shape': (" + rows + ", " + cols + "), }";
         int unpadded = MAGIC.length + 2 + dict.length() + 1;
         int headerLen = dict.length() + 1 + (ALIGN - unpadded % ALIGN) % ALIGN;
-        ByteBuffer buf = ByteBuffer.allocate(MAGIC.length + 2 + headerLen + 8 * values.length).order(ByteOrder.LITTLE_ENDIAN);
+        ByteBuffer buf = ByteBuffer.allocate(MAGIC.length + 2 + headerLen).order(ByteOrder.LITTLE_ENDIAN);
         buf.put(MAGIC).putShort((short) headerLen).put(dict.getBytes(StandardCharsets.US_ASCII));
         for (int i = dict.length(); i < headerLen - 1; i++) buf.put((byte) ' ');
         buf.put((byte) '\n');
-        buf.asDoubleBuffer().put(values);
         return buf.array();
     }
 }

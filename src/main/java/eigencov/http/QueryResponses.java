@@ -1,9 +1,6 @@
 package eigencov.http;
 
-import com.fasterxml.jackson.core.JsonEncoding;
-import com.fasterxml.jackson.core.JsonGenerator;
 import com.fasterxml.jackson.core.io.NumberOutput;
-import com.fasterxml.jackson.databind.ObjectMapper;
 import eigencov.math.ActiveRisk;
 import eigencov.math.PortfolioRisk;
 import eigencov.service.CovarianceMatrix;
@@ -20,15 +17,16 @@ import java.io.IOException;
 import java.io.OutputStream;
 import java.io.OutputStreamWriter;
 import java.io.Writer;
+import java.nio.DoubleBuffer;
 import java.nio.charset.StandardCharsets;
 import java.util.ArrayList;
 import java.util.List;
 
 /**
- * Writes query answers as JSON, CSV or {@code .npy}. JSON is streamed with Jackson's
- * {@link JsonGenerator} (fast double writer, see {@link HttpApi#objectMapper()}) straight to the
- * response, with no intermediate tree; CSV numbers use the same shortest-repr writer; {@code .npy}
- * is one buffer (see {@link Npy}).
+ * Writes query answers as JSON, CSV or {@code .npy}. JSON is streamed with {@link JsonOut} (the
+ * bytes Jackson's generator with the fast double writer would give, at a fraction of its cost)
+ * straight to the response, with no intermediate tree; CSV numbers use Jackson's shortest-repr
+ * writer, the same digits; {@code .npy} is streamed through a small buffer (see {@link Npy}).
  *
  * <p>Formats: JSON matrices are arrays of rows. CSV has a header row; a covariance matrix's first
  * column is the ticker. {@code .npy} rows follow the answered tickers (or dates), listed in the
@@ -39,41 +37,36 @@ final class QueryResponses {
     /** Rough JSON size of one double (digits, exponent, separator), for the compression decision. */
     private static final int BYTES_PER_NUMBER = 22;
 
-    private final ObjectMapper mapper;
-
-    QueryResponses(ObjectMapper mapper) {
-        this.mapper = mapper;
-    }
-
     void covarianceMatrix(Context ctx, Representation rep, CovarianceMatrix a, String key) {
         int n = a.tickers().size();
-        double[] m = a.matrix();
+        DoubleBuffer m = a.matrixView();
         long size = (long) n * n * BYTES_PER_NUMBER;
         switch (rep) {
             case JSON -> json(ctx, a.fit(), key, size, g -> {
-                g.writeStringField("form", "matrix");
+                g.string("form", "matrix");
                 writeScale(g, a.scale());
-                g.writeBooleanField("correlation", a.correlation());
-                strings(g, "tickers", a.tickers());
-                strings(g, "omitted", a.omitted());
-                rows(g, "matrix", m, n, n);
+                g.bool("correlation", a.correlation());
+                g.strings("tickers", a.tickers());
+                g.strings("omitted", a.omitted());
+                g.symmetricRows("matrix", m, n);
             });
             case CSV -> {
                 omittedHeader(ctx, a.omitted());
+                double[] values = a.matrix();
                 csv(ctx, a.fit(), key, size, w -> {
                     w.write("ticker");
                     for (String t : a.tickers()) w.append(',').write(t);
                     w.write('\n');
                     for (int r = 0; r < n; r++) {
                         w.write(a.tickers().get(r));
-                        csvRow(w, m, r * n, n);
+                        csvRow(w, values, r * n, n);
                     }
                 });
             }
             case NPY -> {
                 ResponseSender.listHeader(ctx, "X-Tickers", a.tickers());
                 omittedHeader(ctx, a.omitted());
-                ResponseSender.sendBytes(ctx, a.fit(), rep, key, Npy.matrix(n, n, m));
+                ResponseSender.sendBinary(ctx, a.fit(), rep, key, Npy.length(n, n), out -> Npy.write(out, n, n, m));
             }
         }
     }
@@ -82,14 +75,14 @@ final class QueryResponses {
         int n = a.tickers().size();
         int k = a.factors();
         json(ctx, a.fit(), key, (long) n * (k + 1) * BYTES_PER_NUMBER, g -> {
-            g.writeStringField("form", "factor");
+            g.string("form", "factor");
             writeScale(g, a.scale());
-            g.writeNumberField("factors", k);
-            strings(g, "tickers", a.tickers());
-            strings(g, "omitted", a.omitted());
-            rows(g, "exposures", a.exposures(), n, k);
-            rows(g, "factorCovariance", a.factorCovariance(), k, k);
-            numbers(g, "specificVariance", a.specificVariance());
+            g.number("factors", k);
+            g.strings("tickers", a.tickers());
+            g.strings("omitted", a.omitted());
+            g.rows("exposures", a.exposures(), n, k);
+            g.rows("factorCovariance", a.factorCovariance(), k, k);
+            g.numbers("specificVariance", a.specificVariance());
         });
     }
 
@@ -106,11 +99,11 @@ final class QueryResponses {
         double[] d = a.specificVariance();
         switch (rep) {
             case JSON -> json(ctx, a.fit(), key, size, g -> {
-                g.writeNumberField("factors", k);
-                strings(g, "tickers", a.tickers());
-                strings(g, "omitted", a.omitted());
-                rows(g, "exposures", b, n, k);
-                numbers(g, "specificVariance", d);
+                g.number("factors", k);
+                g.strings("tickers", a.tickers());
+                g.strings("omitted", a.omitted());
+                g.rows("exposures", b, n, k);
+                g.numbers("specificVariance", d);
             });
             case CSV -> {
                 omittedHeader(ctx, a.omitted());
@@ -136,7 +129,7 @@ final class QueryResponses {
                 ctx.header("X-Columns", String.join(",", columns));
                 ResponseSender.listHeader(ctx, "X-Tickers", a.tickers());
                 omittedHeader(ctx, a.omitted());
-                ResponseSender.sendBytes(ctx, a.fit(), rep, key, Npy.matrix(n, k + 1, out));
+                ResponseSender.sendBinary(ctx, a.fit(), rep, key, Npy.length(n, k + 1), o -> Npy.write(o, n, k + 1, out));
             }
         }
     }
@@ -144,11 +137,11 @@ final class QueryResponses {
     void factors(Context ctx, FactorSpectrum a, String key) {
         int k = a.factors();
         json(ctx, a.fit(), key, (long) (k * k + 2 * a.eigenvalues().length) * BYTES_PER_NUMBER, g -> {
-            g.writeNumberField("factors", k);
-            rows(g, "factorCovariance", a.factorCovariance(), k, k);
-            numbers(g, "eigenvalues", a.eigenvalues());
-            numbers(g, "varianceShare", a.varianceShare());
-            g.writeNumberField("explainedShare", a.explainedShare());
+            g.number("factors", k);
+            g.rows("factorCovariance", a.factorCovariance(), k, k);
+            g.numbers("eigenvalues", a.eigenvalues());
+            g.numbers("varianceShare", a.varianceShare());
+            g.number("explainedShare", a.explainedShare());
         });
     }
 
@@ -160,11 +153,11 @@ final class QueryResponses {
         long size = (long) t * k * BYTES_PER_NUMBER;
         switch (rep) {
             case JSON -> json(ctx, a.fit(), key, size, g -> {
-                g.writeNumberField("factors", k);
-                g.writeArrayFieldStart("dates");
-                for (var d : a.dates()) g.writeString(d.toString());
-                g.writeEndArray();
-                rows(g, "factorReturns", v, t, k);
+                g.number("factors", k);
+                g.startArray("dates");
+                for (var d : a.dates()) g.string(d.toString());
+                g.endArray();
+                g.rows("factorReturns", v, t, k);
             });
             case CSV -> csv(ctx, a.fit(), key, size, w -> {
                 w.write("date," + String.join(",", factorColumns(k)) + "\n");
@@ -175,7 +168,7 @@ final class QueryResponses {
             });
             case NPY -> {
                 ResponseSender.listHeader(ctx, "X-Dates", a.dates().stream().map(Object::toString).toList());
-                ResponseSender.sendBytes(ctx, a.fit(), rep, key, Npy.matrix(t, k, v));
+                ResponseSender.sendBinary(ctx, a.fit(), rep, key, Npy.length(t, k), out -> Npy.write(out, t, k, v));
             }
         }
     }
@@ -185,72 +178,72 @@ final class QueryResponses {
         int n = a.tickers().size();
         json(ctx, a.fit(), key, (long) n * 6 * BYTES_PER_NUMBER, g -> {
             writeScale(g, a.scale());
-            g.writeNumberField("volatility", r.volatility());
-            g.writeNumberField("variance", r.variance());
-            g.writeNumberField("factorVariance", r.factorVariance());
-            g.writeNumberField("specificVariance", r.specificVariance());
-            if (r.trackingError() != null) g.writeNumberField("trackingError", r.trackingError());
-            g.writeNumberField("betaToFirstFactor", r.betaToFirstFactor());
+            g.number("volatility", r.volatility());
+            g.number("variance", r.variance());
+            g.number("factorVariance", r.factorVariance());
+            g.number("specificVariance", r.specificVariance());
+            if (r.trackingError() != null) g.number("trackingError", r.trackingError());
+            g.number("betaToFirstFactor", r.betaToFirstFactor());
             byFactor(g, r.factorExposures(), r.factorContributions());
             double[] w = a.weights();
             double[] mcr = r.marginal();
             double[] ccr = r.contribution();
             double[] spec = r.specificContributions();
             double[] beta = r.assetBetasToFirstFactor();
-            g.writeNumberField("specificContribution", sum(spec));
-            g.writeArrayFieldStart("byAsset");
+            g.number("specificContribution", sum(spec));
+            g.startArray("byAsset");
             for (int i = 0; i < n; i++) {
-                g.writeStartObject();
-                g.writeStringField("ticker", a.tickers().get(i));
-                g.writeNumberField("weight", w[i]);
-                g.writeNumberField("marginal", mcr[i]);
-                g.writeNumberField("contribution", ccr[i]);
-                g.writeNumberField("specificContribution", spec[i]);
-                g.writeNumberField("betaToFirstFactor", beta[i]);
-                g.writeEndObject();
+                g.startObject();
+                g.string("ticker", a.tickers().get(i));
+                g.number("weight", w[i]);
+                g.number("marginal", mcr[i]);
+                g.number("contribution", ccr[i]);
+                g.number("specificContribution", spec[i]);
+                g.number("betaToFirstFactor", beta[i]);
+                g.endObject();
             }
-            g.writeEndArray();
+            g.endArray();
             if (r.active() != null) active(g, r.active(), a.activeTickers());
-            strings(g, "omitted", a.omitted());
+            g.strings("omitted", a.omitted());
         });
     }
 
     /** Tracking error decomposed over the union of portfolio and benchmark names (active weights a = w - benchmark). */
-    private static void active(JsonGenerator g, ActiveRisk act, List<String> tickers) throws IOException {
-        g.writeObjectFieldStart("active");
-        g.writeNumberField("trackingError", act.trackingError());
-        g.writeNumberField("variance", act.variance());
+    private static void active(JsonOut g, ActiveRisk act, List<String> tickers) throws IOException {
+        g.startObject("active");
+        g.number("trackingError", act.trackingError());
+        g.number("variance", act.variance());
         byFactor(g, act.factorExposures(), act.factorContributions());
         double[] aw = act.activeWeights();
         double[] mcr = act.marginal();
         double[] ccr = act.contribution();
         double[] spec = act.specificContributions();
-        g.writeNumberField("specificContribution", sum(spec));
-        g.writeArrayFieldStart("byAsset");
+        g.number("specificContribution", sum(spec));
+        g.startArray("byAsset");
         for (int i = 0; i < aw.length; i++) {
-            g.writeStartObject();
-            g.writeStringField("ticker", tickers.get(i));
-            g.writeNumberField("activeWeight", aw[i]);
-            g.writeNumberField("marginal", mcr[i]);
-            g.writeNumberField("contribution", ccr[i]);
-            g.writeNumberField("specificContribution", spec[i]);
-            g.writeEndObject();
+            g.startObject();
+            g.string("ticker", tickers.get(i));
+            g.number("activeWeight", aw[i]);
+            g.number("marginal", mcr[i]);
+            g.number("contribution", ccr[i]);
+            g.number("specificContribution", spec[i]);
+            g.endObject();
         }
-        g.writeEndArray();
-        g.writeEndObject();
+        g.endArray();
+        g.endObject();
     }
 
     /** "byFactor": [{factor (1-based), exposure, contribution}]. */
-    private static void byFactor(JsonGenerator g, double[] exposure, double[] contribution) throws IOException {
-        g.writeArrayFieldStart("byFactor");
+    private static void byFactor(JsonOut g, double[] exposure, double[] contribution) throws IOException {
+        g.startArray("byFactor");
         for (int j = 0; j < exposure.length; j++) {
-            g.writeStartObject();
-            g.writeNumberField("factor", j + 1);
-            g.writeNumberField("exposure", exposure[j]);
-            g.writeNumberField("contribution", contribution[j]);
-            g.writeEndObject();
+            g.startObject();
+            g.number("factor", j + 1);
+            g.number("exposure", exposure[j]);
+            g.number("contribution", contribution[j]);
+            g.endObject();
         }
-        g.writeEndArray();
+        g.endArray();
     }
 
     private static double sum(double[] v) {
@@ -262,56 +255,32 @@ final class QueryResponses {
     // ---- JSON ----
 
     private interface JsonFields {
-        void write(JsonGenerator g) throws IOException;
+        void write(JsonOut g) throws IOException;
     }
 
     /** An object holding "fit", "caution", then {@code fields}. */
-    private void json(Context ctx, FitRef fit, String key, long approxBytes, JsonFields fields) {
+    private static void json(Context ctx, FitRef fit, String key, long approxBytes, JsonFields fields) {
         ResponseSender.send(ctx, fit, Representation.JSON, key, approxBytes, true, out -> {
-            try (JsonGenerator g = mapper.createGenerator(out, JsonEncoding.UTF8)) {
-                g.writeStartObject();
-                g.writeObjectFieldStart("fit");
-                g.writeNumberField("id", fit.id());
-                g.writeStringField("model", fit.model());
-                g.writeStringField("asOf", fit.asOf().toString());
-                g.writeStringField("createdAt", fit.createdAt().toString());
-                g.writeEndObject();
-                g.writeStringField("caution", ResponseSender.CAUTION);
+            try (JsonOut g = new JsonOut(out)) {
+                g.startObject();
+                g.startObject("fit");
+                g.number("id", fit.id());
+                g.string("model", fit.model());
+                g.string("asOf", fit.asOf().toString());
+                g.string("createdAt", fit.createdAt().toString());
+                g.endObject();
+                g.string("caution", ResponseSender.CAUTION);
                 fields.write(g);
-                g.writeEndObject();
+                g.endObject();
             }
         });
     }
 
-    private static void writeScale(JsonGenerator g, Scale s) throws IOException {
-        g.writeObjectFieldStart("scale");
-        g.writeStringField("name", s.name());
-        g.writeNumberField("days", s.days());
-        g.writeEndObject();
-    }
-
-    private static void strings(JsonGenerator g, String name, List<String> values) throws IOException {
-        g.writeArrayFieldStart(name);
-        for (String s : values) g.writeString(s);
-        g.writeEndArray();
-    }
-
-    private static void numbers(JsonGenerator g, String name, double[] values) throws IOException {
-        g.writeArrayFieldStart(name);
-        for (double v : values) g.writeNumber(v);
-        g.writeEndArray();
-    }
-
-    /** A rows x cols row-major matrix as an array of row arrays. */
-    private static void rows(JsonGenerator g, String name, double[] m, int rows, int cols) throws IOException {
-        g.writeArrayFieldStart(name);
-        for (int r = 0; r < rows; r++) {
-            g.writeStartArray();
-            int off = r * cols;
-            for (int c = 0; c < cols; c++) g.writeNumber(m[off + c]);
-            g.writeEndArray();
-        }
-        g.writeEndArray();
+    private static void writeScale(JsonOut g, Scale s) throws IOException {
+        g.startObject("scale");
+        g.string("name", s.name());
+        g.number("days", s.days());
+        g.endObject();
     }
 
     // ---- CSV ----

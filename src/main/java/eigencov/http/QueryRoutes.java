@@ -51,7 +51,7 @@ public final class QueryRoutes implements RouteModule {
 
     public QueryRoutes(QueryService service, ObjectMapper mapper) {
         this.service = service;
-        this.responses = new QueryResponses(mapper);
+        this.responses = new QueryResponses();
         this.covarianceBody = strictReader(mapper, CovarianceBody.class);
         this.exposuresBody = strictReader(mapper, ExposuresBody.class);
         this.riskBody = strictReader(mapper, RiskBody.class);

@@ -84,9 +84,9 @@ final class ResponseSender {
         }
     }
 
-    /** Sends a complete binary body of known length (never compressed). */
-    static void sendBytes(Context ctx, FitRef fit, Representation rep, String requestKey, byte[] bytes) {
-        send(ctx, fit, rep, requestKey, bytes.length, false, bytes.length, out -> out.write(bytes));
+    /** Sends a binary body of known length (never compressed). */
+    static void sendBinary(Context ctx, FitRef fit, Representation rep, String requestKey, long length, Body body) {
+        send(ctx, fit, rep, requestKey, length, false, length, body);
     }
 
     /** Sets a header listing names (tickers, dates), comma-separated; 406 when the list is too long for a header. */

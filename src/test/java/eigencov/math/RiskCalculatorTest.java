@@ -58,6 +58,28 @@ class RiskCalculatorTest {
     }
 
     @Test
+    void a_large_covariance_submatrix_matches_the_naive_product_and_is_exactly_symmetric() {
+        // 70 names: several mirror tiles (32) and a remainder after the four-at-a-time entries
+        FactorModel m = randomModel(200, 7, 5);
+        int n = 70;
+        int[] idx = new int[n];
+        for (int a = 0; a < n; a++) {
+            idx[a] = (a * 37 + 11) % 200;
+        }
+        double[] c = RiskCalculator.covariance(m, idx, 1, false);
+        double max = 0;
+        for (int a = 0; a < n; a++) {
+            max = Math.max(max, naive(m, idx[a], idx[a]));
+        }
+        for (int a = 0; a < n; a++) {
+            for (int b = 0; b < n; b++) {
+                assertEquals(naive(m, idx[a], idx[b]), c[a * n + b], IDENTITY * max);
+                assertEquals(c[b * n + a], c[a * n + b], 0.0);
+            }
+        }
+    }
+
+    @Test
     void covariance_submatrix_matches_the_naive_product_with_scale_and_correlation() {
         FactorModel m = randomModel(40, 5, 1);
         int[] idx = {7, 3, 39, 0, 12};

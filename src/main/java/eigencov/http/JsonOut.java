@@ -1,0 +1,316 @@
+package eigencov.http;
+
+import java.io.IOException;
+import java.io.OutputStream;
+import java.nio.DoubleBuffer;
+import java.nio.charset.StandardCharsets;
+import java.util.Arrays;
+import java.util.List;
+
+/**
+ * A compact UTF-8 JSON writer for query answers, producing exactly the bytes Jackson's
+ * {@code JsonGenerator} produces with our {@link HttpApi#objectMapper()} (no whitespace, doubles in
+ * shortest form via {@link ShortestDouble}, the same string escapes); JsonOutTest pins this
+ * against Jackson. It exists because query answers are mostly numbers and the benchmark measured
+ * Jackson's per-number cost as most of the CPU of every large answer.
+ *
+ * <p>Writes into one buffer that goes to the stream when full and on {@link #flush()}; not
+ * thread-safe; {@link #close()} flushes but leaves the stream open. Callers keep the structure
+ * well formed (no checks beyond nesting depth).
+ */
+final class JsonOut implements AutoCloseable {
+    private static final int BUFFER_BYTES = 16 * 1024;
+    private static final int MAX_DEPTH = 32;
+    /** Largest matrix {@link #symmetricRows} renders each mirrored pair of once. */
+    static final int MAX_SYMMETRIC_REUSE = 1_000;
+    private static final byte[] HEX = "0123456789ABCDEF".getBytes(StandardCharsets.US_ASCII);
+    /** Escape of each ASCII character: 0 none, 'u' as a backslash-u escape (u00XX), else the letter after the backslash. */
+    private static final byte[] ESCAPES = new byte[128];
+
+    static {
+        for (int c = 0; c < 0x20; c++) ESCAPES[c] = 'u';
+        ESCAPES['"'] = '"';
+        ESCAPES['\\'] = '\\';
+        ESCAPES['\b'] = 'b';
+        ESCAPES['\t'] = 't';
+        ESCAPES['\f'] = 'f';
+        ESCAPES['\n'] = 'n';
+        ESCAPES['\r'] = 'r';
+    }
+
+    private final OutputStream out;
+    private final byte[] buf = new byte[BUFFER_BYTES];
+    private int pos;
+    /** Per nesting level: whether the next element needs a comma before it. */
+    private final boolean[] comma = new boolean[MAX_DEPTH];
+    private int depth;
+    /** A field name was just written: its value follows without a comma. */
+    private boolean afterName;
+
+    JsonOut(OutputStream out) {
+        this.out = out;
+    }
+
+    JsonOut startObject() throws IOException {
+        return open('{');
+    }
+
+    JsonOut startObject(String field) throws IOException {
+        return name(field).open('{');
+    }
+
+    JsonOut endObject() throws IOException {
+        return close('}');
+    }
+
+    JsonOut startArray() throws IOException {
+        return open('[');
+    }
+
+    JsonOut startArray(String field) throws IOException {
+        return name(field).open('[');
+    }
+
+    JsonOut endArray() throws IOException {
+        return close(']');
+    }
+
+    JsonOut name(String field) throws IOException {
+        separator();
+        quoted(field);
+        room(1);
+        buf[pos++] = ':';
+        afterName = true;
+        return this;
+    }
+
+    JsonOut string(String value) throws IOException {
+        separator();
+        quoted(value);
+        return this;
+    }
+
+    JsonOut string(String field, String value) throws IOException {
+        return name(field).string(value);
+    }
+
+    JsonOut number(long value) throws IOException {
+        separator();
+        ascii(Long.toString(value));
+        return this;
+    }
+
+    JsonOut number(String field, long value) throws IOException {
+        return name(field).number(value);
+    }
+
+    /** A finite double in shortest form; NaN and infinities as the strings Jackson writes for them. */
+    JsonOut number(double value) throws IOException {
+        separator();
+        if (!Double.isFinite(value)) {
+            quoted(Double.toString(value));
+            return this;
+        }
+        room(ShortestDouble.MAX_CHARS);
+        pos = ShortestDouble.write(value, buf, pos);
+        return this;
+    }
+
+    JsonOut number(String field, double value) throws IOException {
+        return name(field).number(value);
+    }
+
+    JsonOut bool(String field, boolean value) throws IOException {
+        name(field).separator();
+        ascii(value ? "true" : "false");
+        return this;
+    }
+
+    /** {@code "field": ["s0", "s1", ...]}. */
+    JsonOut strings(String field, List<String> values) throws IOException {
+        startArray(field);
+        for (String s : values) string(s);
+        return endArray();
+    }
+
+    /** {@code "field": [v0, v1, ...]}. */
+    JsonOut numbers(String field, double[] values) throws IOException {
+        startArray(field);
+        for (double v : values) number(v);
+        return endArray();
+    }
+
+    /** {@code "field": [[row 0], [row 1], ...]} of a rows x cols row-major matrix. */
+    JsonOut rows(String field, double[] m, int rows, int cols) throws IOException {
+        startArray(field);
+        for (int r = 0; r < rows; r++) {
+            startArray();
+            int off = r * cols;
+            for (int c = 0; c < cols; c++) number(m[off + c]);
+            endArray();
+        }
+        return endArray();
+    }
+
+    /**
+     * As {@link #rows} for an n x n matrix that is (usually) symmetric: an entry below the diagonal
+     * whose mirror above it has the same bits is copied from the mirror's rendering instead of being
+     * rendered again, which halves the number formatting of a covariance matrix (the benchmark's
+     * largest cost). The output is that of {@link #rows} in every case. Keeps the upper triangle's
+     * text, about 11 MB at {@link #MAX_SYMMETRIC_REUSE} names; larger matrices are rendered entry by entry.
+     * Reads {@code m} by absolute index (its position is ignored).
+     */
+    JsonOut symmetricRows(String field, DoubleBuffer m, int n) throws IOException {
+        if (n > MAX_SYMMETRIC_REUSE) {
+            startArray(field);
+            for (int r = 0; r < n; r++) {
+                startArray();
+                for (int c = 0; c < n; c++) number(m.get(r * n + c));
+                endArray();
+            }
+            return endArray();
+        }
+        int[] start = new int[n * (n - 1) / 2 + 1]; // upper entry t's text is text[start[t] .. start[t + 1])
+        byte[] text = new byte[Math.max(64, n * (n - 1) / 2 * 20)];
+        int t = 0; // upper entries are numbered in row order
+        startArray(field);
+        for (int r = 0; r < n; r++) {
+            startArray();
+            int row = r * n;
+            for (int c = 0; c < n; c++) {
+                double v = m.get(row + c);
+                if (c < r && Double.doubleToRawLongBits(v) == Double.doubleToRawLongBits(m.get(c * n + r)) && Double.isFinite(v)) {
+                    int u = c * (2 * n - c - 1) / 2 + (r - c - 1);
+                    int len = start[u + 1] - start[u];
+                    separator();
+                    room(len);
+                    System.arraycopy(text, start[u], buf, pos, len);
+                    pos += len;
+                } else if (c > r && Double.isFinite(v)) {
+                    separator();
+                    room(ShortestDouble.MAX_CHARS);
+                    int end = ShortestDouble.write(v, buf, pos);
+                    int len = end - pos;
+                    if (start[t] + len > text.length) text = Arrays.copyOf(text, Math.max(text.length * 3 / 2, start[t] + len));
+                    System.arraycopy(buf, pos, text, start[t], len);
+                    start[t + 1] = start[t] + len;
+                    t++;
+                    pos = end;
+                } else {
+                    if (c > r) start[t + 1] = start[t++]; // not finite: nothing kept, its mirror renders itself
+                    number(v);
+                }
+            }
+            endArray();
+        }
+        return endArray();
+    }
+
+    /** Writes what is buffered to the stream (without flushing the stream). */
+    void flush() throws IOException {
+        if (pos > 0) {
+            out.write(buf, 0, pos);
+            pos = 0;
+        }
+    }
+
+    @Override
+    public void close() throws IOException {
+        flush();
+    }
+
+    private JsonOut open(char bracket) throws IOException {
+        separator();
+        if (depth + 1 >= MAX_DEPTH) throw new IllegalStateException("JSON nested deeper than " + MAX_DEPTH);
+        room(1);
+        buf[pos++] = (byte) bracket;
+        comma[++depth] = false;
+        return this;
+    }
+
+    private JsonOut close(char bracket) throws IOException {
+        if (depth == 0) throw new IllegalStateException("nothing open to close with " + bracket);
+        depth--;
+        room(1);
+        buf[pos++] = (byte) bracket;
+        return this;
+    }
+
+    /** The comma before a value or field name, unless it is the first or follows its name. */
+    private void separator() throws IOException {
+        if (afterName) {
+            afterName = false;
+            return;
+        }
+        if (comma[depth]) {
+            room(1);
+            buf[pos++] = ',';
+        }
+        comma[depth] = true;
+    }
+
+    private void ascii(String s) throws IOException {
+        room(s.length());
+        for (int i = 0; i < s.length(); i++) buf[pos++] = (byte) s.charAt(i);
+    }
+
+    private void quoted(String s) throws IOException {
+        room(2);
+        buf[pos++] = '"';
+        for (int i = 0; i < s.length(); i++) {
+            char c = s.charAt(i);
+            if (c < 0x80) {
+                if (ESCAPES[c] == 0) {
+                    room(1);
+                    buf[pos++] = (byte) c;
+                } else {
+                    escape(c);
+                }
+            } else {
+                nonAscii(c);
+            }
+        }
+        room(1);
+        buf[pos++] = '"';
+    }
+
+    /** UTF-8, except that Jackson writes each half of a surrogate pair as a backslash-u escape (uXXXX). */
+    private void nonAscii(char c) throws IOException {
+        room(6);
+        if (Character.isSurrogate(c)) {
+            buf[pos++] = '\\';
+            buf[pos++] = 'u';
+            buf[pos++] = HEX[c >> 12];
+            buf[pos++] = HEX[(c >> 8) & 0xF];
+            buf[pos++] = HEX[(c >> 4) & 0xF];
+            buf[pos++] = HEX[c & 0xF];
+        } else if (c < 0x800) {
+            buf[pos++] = (byte) (0xC0 | c >> 6);
+            buf[pos++] = (byte) (0x80 | c & 0x3F);
+        } else {
+            buf[pos++] = (byte) (0xE0 | c >> 12);
+            buf[pos++] = (byte) (0x80 | (c >> 6) & 0x3F);
+            buf[pos++] = (byte) (0x80 | c & 0x3F);
+        }
+    }
+
+    /** An ASCII character that JSON strings must escape. */
+    private void escape(char c) throws IOException {
+        byte esc = ESCAPES[c];
+        room(6);
+        buf[pos++] = '\\';
+        if (esc != 'u') {
+            buf[pos++] = esc;
+        } else {
+            buf[pos++] = 'u';
+            buf[pos++] = '0';
+            buf[pos++] = '0';
+            buf[pos++] = HEX[c >> 4];
+            buf[pos++] = HEX[c & 0xF];
+        }
+    }
+
+    private void room(int n) throws IOException {
+        if (pos + n > buf.length) flush();
+    }
+}
