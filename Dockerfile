@@ -29,4 +29,4 @@ USER eigencov
 # bash's /dev/tcp: no curl or wget needed in the runtime image.
 HEALTHCHECK --interval=30s --timeout=5s --start-period=120s --retries=3 \
   CMD ["bash", "-c", "exec 3<>/dev/tcp/127.0.0.1/8080 && printf 'GET /health HTTP/1.0\\r\\n\\r\\n' >&3 && head -1 <&3 | grep -q ' 200 '"]
-ENTRYPOINT ["java", "-XX:MaxRAMPercentage=75", "-jar", "/app/eigencov.jar", "serve"]
+ENTRYPOINT ["java", "-XX:MaxRAMPercentage=75", "--add-modules", "jdk.incubator.vector", "-jar", "/app/eigencov.jar", "serve"]

@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # A guided tour of the eigencov API with curl, against a server started with the demo:
 #
-#   java -jar target/eigencov.jar serve --demo        # then, in another terminal:
+#   java --add-modules jdk.incubator.vector -jar target/eigencov.jar serve --demo        # then, in another terminal:
 #   scripts/tour.sh                                   # or: EIGENCOV_URL=http://host:port scripts/tour.sh
 #
 # Each step prints the call, then the answer. Set EIGENCOV_KEY to send "Authorization: Bearer <key>".

@@ -57,7 +57,7 @@ free_port() { python3 -c 'import socket; s=socket.socket(); s.bind(("127.0.0.1",
 start_server() {
   local name=$1 port=$2 db=$3 pid i
   shift 3
-  java -Xmx1g -jar "$JAR" serve --port "$port" --db "$db" "$@" >"$WORK/$name.log" 2>&1 &
+  java --add-modules jdk.incubator.vector -Xmx1g -jar "$JAR" serve --port "$port" --db "$db" "$@" >"$WORK/$name.log" 2>&1 &
   pid=$!
   STARTED_PIDS+=("$pid")
   printf -v "${name}_PID" '%s' "$pid"

@@ -8,6 +8,7 @@ import eigencov.http.ModelRoutes;
 import eigencov.http.PanelRoutes;
 import eigencov.http.RouteModule;
 import eigencov.math.FactorFitter;
+import eigencov.math.Kernels;
 import eigencov.service.FitCodec;
 import eigencov.service.FitLookup;
 import eigencov.service.FitService;
@@ -156,7 +157,8 @@ public final class App implements AutoCloseable {
             LOG.warn("NO API KEYS CONFIGURED: authentication is off, so the server listens on loopback ({}) only. "
                     + "Set EIGENCOV_API_KEYS to serve other hosts.", config.bindHost());
         }
-        LOG.info("eigencov listening on {}:{}", config.bindHost(), http.port());
+        LOG.info("eigencov listening on {}:{}; fits use {}", config.bindHost(), http.port(),
+                Kernels.description());
         return this;
     }
 

@@ -18,6 +18,15 @@ final class Dense {
      * the output rows split over the pool with equal triangular work.
      */
     static void crossProduct(double[] m, int rows, int cols, double[] g, Parallel par) {
+        if (Kernels.VECTOR) {
+            VectorKernels.crossProduct(m, rows, cols, g, par);
+            return;
+        }
+        crossProductScalar(m, rows, cols, g, par);
+    }
+
+    /** The scalar form of {@link #crossProduct} (JVMs without the vector module; test comparisons). */
+    static void crossProductScalar(double[] m, int rows, int cols, double[] g, Parallel par) {
         par.forTriangle(cols, (part, from, to) -> crossProductRows(m, rows, cols, g, from, to));
         for (int s = 0; s < cols; s++) {
             int so = s * cols;
@@ -107,6 +116,15 @@ final class Dense {
 
     private static void rowDotsBlock(double[] a, int n, double[] b, int l, double[] c, int i0, int i1, int c0,
                                      int c1) {
+        if (Kernels.VECTOR) {
+            VectorKernels.rowDotsBlock(a, n, b, l, c, i0, i1, c0, c1);
+            return;
+        }
+        rowDotsBlockScalar(a, n, b, l, c, i0, i1, c0, c1);
+    }
+
+    static void rowDotsBlockScalar(double[] a, int n, double[] b, int l, double[] c, int i0, int i1, int c0,
+                                   int c1) {
         int i = i0;
         for (; i + 1 < i1; i += 2) {
             int ao = i * n;
@@ -135,13 +153,13 @@ final class Dense {
                 c[(i + 1) * l + j + 1] = s11;
             }
             for (; j < c1; j++) {
-                c[i * l + j] = dot(a, ao, b, j * n, n);
-                c[(i + 1) * l + j] = dot(a, ao1, b, j * n, n);
+                c[i * l + j] = dotScalar(a, ao, b, j * n, n);
+                c[(i + 1) * l + j] = dotScalar(a, ao1, b, j * n, n);
             }
         }
         for (; i < i1; i++) {
             for (int j = c0; j < c1; j++) {
-                c[i * l + j] = dot(a, i * n, b, j * n, n);
+                c[i * l + j] = dotScalar(a, i * n, b, j * n, n);
             }
         }
     }
@@ -157,6 +175,11 @@ final class Dense {
             double[] acc = part == 0 ? c : new double[l * n];
             if (part == 0) {
                 java.util.Arrays.fill(c, 0, l * n, 0.0);
+            }
+            if (Kernels.VECTOR) {
+                VectorKernels.leftMultiplyRows(q, l, r, m, n, acc, from, to);
+                partial[part] = acc;
+                return;
             }
             for (int i = from; i < to; i++) {
                 int mo = i * n;
@@ -183,6 +206,21 @@ final class Dense {
     }
 
     static double dot(double[] a, int ao, double[] b, int bo, int n) {
+        return Kernels.VECTOR ? VectorKernels.dot(a, ao, b, bo, n) : dotScalar(a, ao, b, bo, n);
+    }
+
+    /** y[yo + t] += alpha x[xo + t] for t in [0, n). */
+    static void axpy(double alpha, double[] x, int xo, double[] y, int yo, int n) {
+        if (Kernels.VECTOR) {
+            VectorKernels.axpy(alpha, x, xo, y, yo, n);
+            return;
+        }
+        for (int t = 0; t < n; t++) {
+            y[yo + t] = Math.fma(alpha, x[xo + t], y[yo + t]);
+        }
+    }
+
+    static double dotScalar(double[] a, int ao, double[] b, int bo, int n) {
         double s0 = 0;
         double s1 = 0;
         double s2 = 0;
@@ -231,10 +269,7 @@ final class Dense {
             for (int pass = 0; pass < 2; pass++) {
                 for (int p = 0; p < kept; p++) {
                     int po = p * n;
-                    double s = dot(v, po, v, vo, n);
-                    for (int t = 0; t < n; t++) {
-                        v[vo + t] -= s * v[po + t];
-                    }
+                    axpy(-dot(v, po, v, vo, n), v, po, v, vo, n);
                 }
             }
             double norm = Math.sqrt(dot(v, vo, v, vo, n));

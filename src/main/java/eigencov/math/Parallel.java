@@ -59,6 +59,22 @@ final class Parallel {
         run(bounds, task);
     }
 
+    /**
+     * Runs {@code task} on slices of [from, to) of equal work where the row at from + x costs about
+     * (to - from) - x (upper-triangle kernels).
+     */
+    void forDecreasing(int from, int to, RangeTask task) {
+        int n = to - from;
+        int p = Math.max(1, Math.min(parts, n));
+        int[] bounds = new int[p + 1];
+        for (int i = 0; i <= p; i++) {
+            bounds[i] = to - (int) Math.round(n * Math.sqrt((double) (p - i) / p));
+        }
+        bounds[0] = from;
+        bounds[p] = to;
+        run(bounds, task);
+    }
+
     private void run(int[] bounds, RangeTask task) {
         int p = bounds.length - 1;
         if (p == 1 || pool == null) {

@@ -9,7 +9,8 @@ import java.util.Arrays;
  * <ol>
  * <li>Householder reduction to tridiagonal form {@code A = Q T Q'} (Golub and Van Loan, Matrix
  * Computations, 4th ed., section 8.3.1), with the symmetric rank-2 update of one step fused with the
- * matrix-vector product of the next, so each step streams the trailing block once.</li>
+ * matrix-vector product of the next, so each step streams the trailing block once; after the first step
+ * only the upper triangle is updated (A is symmetric), which halves the traffic.</li>
  * <li>All eigenvalues of T by the implicit QL algorithm with Wilkinson-type shifts, without vectors
  * (O(n^2); Bowdler, Martin, Reinsch and Wilkinson 1968, EISPACK tql1).</li>
  * <li>Eigenvectors of only the leading m eigenvalues, by inverse iteration on T with partial pivoting and
@@ -177,11 +178,11 @@ final class SymmetricEigen {
             } else {
                 e[r] = a[ro + r + 1];
             }
-            // fused: update rows i > r (columns > r) and accumulate p = A u_next
+            // fused: update rows i > r (upper triangle, columns >= i) and accumulate p = A u_next
             if (par.parts() > 1 && n - r >= PARALLEL_MIN_ROWS) {
                 final int jj = j;
                 final boolean nx = next;
-                par.forRange(r + 1, n, (part, from, to) -> {
+                par.forDecreasing(r + 1, n, (part, from, to) -> {
                     double[] acc = part == 0 ? p : partial[part];
                     if (part > 0) {
                         Arrays.fill(acc, r + 1, n, 0.0);
@@ -204,31 +205,50 @@ final class SymmetricEigen {
     }
 
     /**
-     * Rows [from, to) of step j: A22 -= u w' + w u' on columns > j+1, and, when {@code next}, p += u_next[i] row_i
-     * with u_next stored in row j+1. Rows are independent, so slices can run on different threads.
+     * Rows [from, to) of step j on the upper triangle (row i holds columns c >= i; the lower triangle
+     * is not kept up to date after step 0): a_ic -= u_i w_c + w_i u_c, and, when {@code next},
+     * p += A u_next for the symmetric A, as p_c += a_ic un_i (c >= i) and p_i += sum_{c > i} a_ic un_c,
+     * with u_next stored in row j+1. Rows are independent, so slices can run on different threads,
+     * each into its own p.
      */
     private static void updateRows(double[] a, int n, int j, boolean next, double[] w, double[] p, int from, int to) {
         int uo = j * n;
         int ro = (j + 1) * n;
-        int c0 = j + 2;
         for (int i = from; i < to; i++) {
             int io = i * n;
             double ui = a[uo + i];
             double wi = w[i];
+            double diag = Math.fma(-ui, w[i], Math.fma(-wi, a[uo + i], a[io + i]));
+            a[io + i] = diag;
             double un = next ? a[ro + i] : 0;
-            if (un != 0) {
-                // one pass: update the row and accumulate the next product (vector FMAs)
-                for (int c = c0; c < n; c++) {
-                    double v = Math.fma(-ui, w[c], Math.fma(-wi, a[uo + c], a[io + c]));
-                    a[io + c] = v;
-                    p[c] = Math.fma(un, v, p[c]);
-                }
-            } else {
-                for (int c = c0; c < n; c++) {
-                    a[io + c] = Math.fma(-ui, w[c], Math.fma(-wi, a[uo + c], a[io + c]));
-                }
+            double dot = Kernels.VECTOR ? VectorKernels.rowPass(a, n, io, uo, ro, ui, wi, un, next, w, p, i + 1)
+                    : rowPass(a, n, io, uo, ro, ui, wi, un, next, w, p, i + 1, 0);
+            if (next) {
+                p[i] += Math.fma(un, diag, dot);
             }
         }
+    }
+
+    /**
+     * Columns [from, n) of row i's pass (scalar; also the tail of the vector pass): updates the row,
+     * and when {@code next} adds un a_ic to p_c and returns {@code dot} + sum a_ic un_c.
+     */
+    static double rowPass(double[] a, int n, int io, int uo, int ro, double ui, double wi, double un, boolean next,
+                          double[] w, double[] p, int from, double dot) {
+        if (!next) {
+            for (int c = from; c < n; c++) {
+                a[io + c] = Math.fma(-ui, w[c], Math.fma(-wi, a[uo + c], a[io + c]));
+            }
+            return dot;
+        }
+        double s = dot;
+        for (int c = from; c < n; c++) {
+            double v = Math.fma(-ui, w[c], Math.fma(-wi, a[uo + c], a[io + c]));
+            a[io + c] = v;
+            p[c] = Math.fma(un, v, p[c]);
+            s = Math.fma(v, a[ro + c], s);
+        }
+        return s;
     }
 
     /**
@@ -414,11 +434,7 @@ final class SymmetricEigen {
                 }
                 solve(dd, du, du2, dl, swap, y);
                 for (int q = cluster; q < j; q++) {
-                    double s = Dense.dot(z, q * n, y, 0, n);
-                    int qo = q * n;
-                    for (int i = 0; i < n; i++) {
-                        y[i] -= s * z[qo + i];
-                    }
+                    Dense.axpy(-Dense.dot(z, q * n, y, 0, n), z, q * n, y, 0, n);
                 }
                 double nrm = Math.sqrt(Dense.dot(y, 0, y, 0, n));
                 for (int i = 0; i < n; i++) {
@@ -496,14 +512,8 @@ final class SymmetricEigen {
             int from = j + 1;
             for (int v = 0; v < m; v++) {
                 int zo = v * n;
-                double s = 0;
-                for (int c = from; c < n; c++) {
-                    s += a[uo + c] * z[zo + c];
-                }
-                s *= t;
-                for (int c = from; c < n; c++) {
-                    z[zo + c] -= s * a[uo + c];
-                }
+                double s = t * Dense.dot(a, uo + from, z, zo + from, n - from);
+                Dense.axpy(-s, a, uo + from, z, zo + from, n - from);
             }
         }
     }

@@ -5,6 +5,7 @@ import eigencov.math.FactorModel;
 import eigencov.math.FactorRule;
 import eigencov.math.FitOptions;
 import eigencov.math.FitResult;
+import eigencov.math.Kernels;
 import eigencov.math.ReturnPanel;
 import eigencov.math.RiskCalculator;
 import java.io.IOException;
@@ -31,12 +32,18 @@ import java.util.concurrent.Executors;
 public final class FitBench {
 
     private static final int K_FACTORS = 20;
+    /**
+     * Warm-up per shape: C2 compiles the kernels after some thousand loop back-edges, and a fit's big
+     * methods are first run by on-stack replacement; two warm-up fits left the medians 1.5x too high.
+     */
+    private static final int WARMUP_FITS = 5;
+    private static final long WARMUP_NANOS = 3_000_000_000L;
 
     private FitBench() {
     }
 
     public static void main(String[] args) throws Exception {
-        int reps = args.length > 0 ? Integer.parseInt(args[0]) : 7;
+        int reps = args.length > 0 ? Integer.parseInt(args[0]) : 15;
         int[][] shapes = {{252, 500}, {504, 3000}, {756, 3000}, {504, 6000}};
         int threads = Runtime.getRuntime().availableProcessors();
         ExecutorService pool = Executors.newFixedThreadPool(threads, r -> {
@@ -47,8 +54,9 @@ public final class FitBench {
         boolean numpy = hasNumpy();
         System.out.println("alloc MB = bytes allocated by all threads during one fit (upper bound on peak extra "
                 + "memory; the input panel itself is T x K x 8 bytes)");
-        System.out.printf("eigencov fit benchmark: %d threads, %d timed fits per shape (after 2 warm-up), k = %d, "
-                + "numpy %s%n", threads, reps, K_FACTORS, numpy ? "present" : "absent");
+        System.out.printf("eigencov fit benchmark: %d threads, %d timed fits per shape (after at least %d warm-up fits "
+                + "and %.0f s, for the JIT), k = %d, numpy %s, %s%n", threads, reps, WARMUP_FITS, WARMUP_NANOS / 1e9,
+                K_FACTORS, numpy ? "present" : "absent", Kernels.description());
         System.out.println("cpu ms = process CPU time per fit, all threads (less sensitive than wall time to other "
                 + "load on the machine); np cpu likewise for numpy's Gram route");
         System.out.printf("%-12s %9s %9s %9s %9s %11s %11s %10s %9s %9s %9s%n", "T x K", "fit ms", "min ms", "cpu ms",
@@ -60,7 +68,8 @@ public final class FitBench {
             int t = shape[0];
             int k = shape[1];
             ReturnPanel panel = panel(t, k, 42L + t + k);
-            for (int w = 0; w < 2; w++) {
+            long warm = System.nanoTime();
+            for (int w = 0; w < WARMUP_FITS || System.nanoTime() - warm < WARMUP_NANOS; w++) {
                 fitter.fit(panel, options, null);
             }
             double[] ms = new double[reps];

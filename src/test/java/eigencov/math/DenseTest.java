@@ -38,7 +38,7 @@ class DenseTest {
     }
 
     @ParameterizedTest(name = "{0} x {1}")
-    @CsvSource({"1, 1", "5, 3", "67, 9", "130, 66", "7, 40"})
+    @CsvSource({"1, 1", "5, 3", "67, 9", "130, 66", "7, 40", "64, 16", "65, 17", "200, 33", "3, 100"})
     void kernels_match_naive_loops_single_and_pooled(int rows, int cols) {
         double[] m = random(rows * cols, rows * 31L + cols);
         for (Parallel par : new Parallel[] {new Parallel(null), new Parallel(pool)}) {
