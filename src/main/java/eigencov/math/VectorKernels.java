@@ -183,48 +183,13 @@ final class VectorKernels {
      * two of B at a time (four vector accumulators), lanes summed at the end.
      */
     static void rowDotsBlock(double[] a, int n, double[] b, int l, double[] c, int i0, int i1, int j0, int j1) {
-        int bound = n - L;
         int i = i0;
         for (; i + 1 < i1; i += 2) {
             int ao = i * n;
             int ao1 = ao + n;
             int j = j0;
             for (; j + 1 < j1; j += 2) {
-                int bo = j * n;
-                int bo1 = bo + n;
-                DoubleVector s00 = DoubleVector.zero(S);
-                DoubleVector s01 = s00;
-                DoubleVector s10 = s00;
-                DoubleVector s11 = s00;
-                int t = 0;
-                for (; t <= bound; t += L) {
-                    DoubleVector x0 = DoubleVector.fromArray(S, a, ao + t);
-                    DoubleVector x1 = DoubleVector.fromArray(S, a, ao1 + t);
-                    DoubleVector y0 = DoubleVector.fromArray(S, b, bo + t);
-                    DoubleVector y1 = DoubleVector.fromArray(S, b, bo1 + t);
-                    s00 = x0.fma(y0, s00);
-                    s01 = x0.fma(y1, s01);
-                    s10 = x1.fma(y0, s10);
-                    s11 = x1.fma(y1, s11);
-                }
-                double r00 = s00.reduceLanes(VectorOperators.ADD);
-                double r01 = s01.reduceLanes(VectorOperators.ADD);
-                double r10 = s10.reduceLanes(VectorOperators.ADD);
-                double r11 = s11.reduceLanes(VectorOperators.ADD);
-                for (; t < n; t++) {
-                    double x0 = a[ao + t];
-                    double x1 = a[ao1 + t];
-                    double y0 = b[bo + t];
-                    double y1 = b[bo1 + t];
-                    r00 = Math.fma(x0, y0, r00);
-                    r01 = Math.fma(x0, y1, r01);
-                    r10 = Math.fma(x1, y0, r10);
-                    r11 = Math.fma(x1, y1, r11);
-                }
-                c[i * l + j] = r00;
-                c[i * l + j + 1] = r01;
-                c[(i + 1) * l + j] = r10;
-                c[(i + 1) * l + j + 1] = r11;
+                dots2x2(a, ao, ao1, b, j * n, j * n + n, n, c, i * l + j, (i + 1) * l + j);
             }
             for (; j < j1; j++) {
                 c[i * l + j] = dot(a, ao, b, j * n, n);
@@ -239,11 +204,53 @@ final class VectorKernels {
     }
 
     /**
+     * c[o0], c[o0 + 1], c[o1], c[o1 + 1] = the dot products of rows (ao, ao1) of a with rows (bo, bo1) of b.
+     * A method of its own, called once per pair of pairs, so that C2 compiles it whole and keeps the
+     * accumulators in registers (a loop first compiled by on-stack replacement boxes live vectors).
+     */
+    private static void dots2x2(double[] a, int ao, int ao1, double[] b, int bo, int bo1, int n, double[] c, int o0,
+                                int o1) {
+        DoubleVector s00 = DoubleVector.zero(S);
+        DoubleVector s01 = s00;
+        DoubleVector s10 = s00;
+        DoubleVector s11 = s00;
+        int t = 0;
+        int bound = n - L;
+        for (; t <= bound; t += L) {
+            DoubleVector x0 = DoubleVector.fromArray(S, a, ao + t);
+            DoubleVector x1 = DoubleVector.fromArray(S, a, ao1 + t);
+            DoubleVector y0 = DoubleVector.fromArray(S, b, bo + t);
+            DoubleVector y1 = DoubleVector.fromArray(S, b, bo1 + t);
+            s00 = x0.fma(y0, s00);
+            s01 = x0.fma(y1, s01);
+            s10 = x1.fma(y0, s10);
+            s11 = x1.fma(y1, s11);
+        }
+        double r00 = s00.reduceLanes(VectorOperators.ADD);
+        double r01 = s01.reduceLanes(VectorOperators.ADD);
+        double r10 = s10.reduceLanes(VectorOperators.ADD);
+        double r11 = s11.reduceLanes(VectorOperators.ADD);
+        for (; t < n; t++) {
+            double x0 = a[ao + t];
+            double x1 = a[ao1 + t];
+            double y0 = b[bo + t];
+            double y1 = b[bo1 + t];
+            r00 = Math.fma(x0, y0, r00);
+            r01 = Math.fma(x0, y1, r01);
+            r10 = Math.fma(x1, y0, r10);
+            r11 = Math.fma(x1, y1, r11);
+        }
+        c[o0] = r00;
+        c[o0 + 1] = r01;
+        c[o1] = r10;
+        c[o1 + 1] = r11;
+    }
+
+    /**
      * acc (l x n) += Q[:, from..to) M[from..to, :] for Q (l x r) and M (r x n): each row of M is loaded
      * once per four rows of the output (four axpys sharing the load).
      */
     static void leftMultiplyRows(double[] q, int l, int r, double[] m, int n, double[] acc, int from, int to) {
-        int bound = n - L;
         for (int i = from; i < to; i++) {
             int mo = i * n;
             int j = 0;
@@ -252,29 +259,7 @@ final class VectorKernels {
                 double f1 = q[(j + 1) * r + i];
                 double f2 = q[(j + 2) * r + i];
                 double f3 = q[(j + 3) * r + i];
-                int o0 = j * n;
-                int o1 = o0 + n;
-                int o2 = o1 + n;
-                int o3 = o2 + n;
-                DoubleVector v0 = DoubleVector.broadcast(S, f0);
-                DoubleVector v1 = DoubleVector.broadcast(S, f1);
-                DoubleVector v2 = DoubleVector.broadcast(S, f2);
-                DoubleVector v3 = DoubleVector.broadcast(S, f3);
-                int t = 0;
-                for (; t <= bound; t += L) {
-                    DoubleVector x = DoubleVector.fromArray(S, m, mo + t);
-                    x.fma(v0, DoubleVector.fromArray(S, acc, o0 + t)).intoArray(acc, o0 + t);
-                    x.fma(v1, DoubleVector.fromArray(S, acc, o1 + t)).intoArray(acc, o1 + t);
-                    x.fma(v2, DoubleVector.fromArray(S, acc, o2 + t)).intoArray(acc, o2 + t);
-                    x.fma(v3, DoubleVector.fromArray(S, acc, o3 + t)).intoArray(acc, o3 + t);
-                }
-                for (; t < n; t++) {
-                    double x = m[mo + t];
-                    acc[o0 + t] = Math.fma(f0, x, acc[o0 + t]);
-                    acc[o1 + t] = Math.fma(f1, x, acc[o1 + t]);
-                    acc[o2 + t] = Math.fma(f2, x, acc[o2 + t]);
-                    acc[o3 + t] = Math.fma(f3, x, acc[o3 + t]);
-                }
+                axpy4(f0, f1, f2, f3, m, mo, acc, j * n, n);
             }
             for (; j < l; j++) {
                 double f = q[j * r + i];
@@ -282,6 +267,34 @@ final class VectorKernels {
                     axpy(f, m, mo, acc, j * n, n);
                 }
             }
+        }
+    }
+
+    /** acc rows at o, o + n, o + 2n, o + 3n += f0..f3 times m[mo .. mo + n): one load of m for four axpys. */
+    private static void axpy4(double f0, double f1, double f2, double f3, double[] m, int mo, double[] acc, int o,
+                              int n) {
+        int o1 = o + n;
+        int o2 = o1 + n;
+        int o3 = o2 + n;
+        DoubleVector v0 = DoubleVector.broadcast(S, f0);
+        DoubleVector v1 = DoubleVector.broadcast(S, f1);
+        DoubleVector v2 = DoubleVector.broadcast(S, f2);
+        DoubleVector v3 = DoubleVector.broadcast(S, f3);
+        int t = 0;
+        int bound = n - L;
+        for (; t <= bound; t += L) {
+            DoubleVector x = DoubleVector.fromArray(S, m, mo + t);
+            x.fma(v0, DoubleVector.fromArray(S, acc, o + t)).intoArray(acc, o + t);
+            x.fma(v1, DoubleVector.fromArray(S, acc, o1 + t)).intoArray(acc, o1 + t);
+            x.fma(v2, DoubleVector.fromArray(S, acc, o2 + t)).intoArray(acc, o2 + t);
+            x.fma(v3, DoubleVector.fromArray(S, acc, o3 + t)).intoArray(acc, o3 + t);
+        }
+        for (; t < n; t++) {
+            double x = m[mo + t];
+            acc[o + t] = Math.fma(f0, x, acc[o + t]);
+            acc[o1 + t] = Math.fma(f1, x, acc[o1 + t]);
+            acc[o2 + t] = Math.fma(f2, x, acc[o2 + t]);
+            acc[o3 + t] = Math.fma(f3, x, acc[o3 + t]);
         }
     }
 
