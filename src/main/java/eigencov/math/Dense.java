@@ -220,6 +220,28 @@ final class Dense {
         }
     }
 
+    /** m[o + t] = r[t] (x[o + t] - mu) for t in [0, n) (x and m may be the same array). */
+    static void centreScale(double[] x, int o, double mu, double[] r, double[] m, int n) {
+        if (Kernels.VECTOR) {
+            VectorKernels.centreScale(x, o, mu, r, m, n);
+            return;
+        }
+        for (int t = 0; t < n; t++) {
+            m[o + t] = r[t] * (x[o + t] - mu);
+        }
+    }
+
+    /** v[o + t] *= f for t in [0, n). */
+    static void scale(double[] v, int o, double f, int n) {
+        if (Kernels.VECTOR) {
+            VectorKernels.scale(v, o, f, n);
+            return;
+        }
+        for (int t = 0; t < n; t++) {
+            v[o + t] *= f;
+        }
+    }
+
     static double dotScalar(double[] a, int ao, double[] b, int bo, int n) {
         double s0 = 0;
         double s1 = 0;

@@ -81,14 +81,21 @@ public final class FactorFitter {
             throw new InsufficientDataException("the window has no tickers");
         }
         double[] values = window.valuesView();
-        // coverage
+        // one pass over the window: ticker-major copy of every column (blocked transpose, cache lines
+        // reused) and the observation count per ticker for the coverage filter
         int required = requiredObservations(options.minCoverage(), dates);
         int[] counts = new int[cols];
-        for (int t = 0; t < dates; t++) {
-            int o = t * cols;
-            for (int i = 0; i < cols; i++) {
-                if (!Double.isNaN(values[o + i])) {
-                    counts[i]++;
+        double[] x = new double[cols * dates];
+        for (int a0 = 0; a0 < cols; a0 += GATHER_BLOCK) {
+            int a1 = Math.min(cols, a0 + GATHER_BLOCK);
+            for (int t = 0; t < dates; t++) {
+                int row = t * cols;
+                for (int a = a0; a < a1; a++) {
+                    double v = values[row + a];
+                    x[a * dates + t] = v;
+                    if (v == v) {
+                        counts[a]++;
+                    }
                 }
             }
         }
@@ -108,19 +115,22 @@ public final class FactorFitter {
         for (int t = 0; t < dates; t++) {
             sqrtW[t] = Math.sqrt(w[t]);
         }
-        // ticker-major raw values (blocked transpose of the admitted columns), gaps filled by the weighted
-        // mean of the observed cells
-        double[] x = new double[k0 * dates];
-        for (int a0 = 0; a0 < k0; a0 += GATHER_BLOCK) {
-            int a1 = Math.min(k0, a0 + GATHER_BLOCK);
-            for (int t = 0; t < dates; t++) {
-                int row = t * cols;
-                for (int a = a0; a < a1; a++) {
-                    x[a * dates + t] = values[row + admitted[a]];
+        // keep the admitted rows (in place: admitted[a] >= a), gaps filled by the weighted mean of the
+        // observed cells and recorded in ascending position
+        if (k0 < cols) {
+            for (int a = 0; a < k0; a++) {
+                if (admitted[a] != a) {
+                    System.arraycopy(x, admitted[a] * dates, x, a * dates, dates);
                 }
             }
+            x = java.util.Arrays.copyOf(x, k0 * dates);
         }
         int missing = 0;
+        for (int a = 0; a < k0; a++) {
+            missing += dates - counts[admitted[a]];
+        }
+        int[] gaps = new int[missing];
+        int g = 0;
         for (int a = 0; a < k0; a++) {
             int xo = a * dates;
             if (counts[admitted[a]] == dates) {
@@ -139,17 +149,8 @@ public final class FactorFitter {
             for (int t = 0; t < dates; t++) {
                 if (Double.isNaN(x[xo + t])) {
                     x[xo + t] = mean;
-                    missing++;
+                    gaps[g++] = xo + t;
                 }
-            }
-        }
-        int[] gaps = new int[missing];
-        int g = 0;
-        for (int p = 0; p < x.length && g < missing; p++) {
-            int a = p / dates;
-            int t = p % dates;
-            if (Double.isNaN(values[t * cols + admitted[a]])) {
-                gaps[g++] = p;
             }
         }
         List<String> universe = new ArrayList<>(k0);
@@ -206,10 +207,7 @@ public final class FactorFitter {
         double[] m = x;
         double[] scale = standardise(x, assets, dates, w, sqrtW, mean, variance, options.basis() == Basis.CORRELATION,
                 m);
-        double trace = 0;
-        for (int p = 0; p < m.length; p++) {
-            trace += m[p] * m[p];
-        }
+        double trace = Dense.dot(m, 0, m, 0, m.length);
         PcaSolver pca = PcaSolver.exact(m, assets, dates, par);
         if (pca.rank() == 0) {
             throw new InsufficientDataException("every return series in the window is constant: no variance to fit");
@@ -324,25 +322,15 @@ public final class FactorFitter {
         double[] sigma = standardised ? new double[assets] : null;
         for (int i = 0; i < assets; i++) {
             int o = i * dates;
-            double mu = 0;
-            for (int t = 0; t < dates; t++) {
-                mu += w[t] * x[o + t];
-            }
-            double s = 0;
-            for (int t = 0; t < dates; t++) {
-                double d = sqrtW[t] * (x[o + t] - mu);
-                m[o + t] = d;
-                s += d * d;
-            }
+            double mu = Dense.dot(w, 0, x, o, dates);
+            Dense.centreScale(x, o, mu, sqrtW, m, dates);
+            double s = Dense.dot(m, o, m, o, dates);
             mean[i] = mu;
             variance[i] = s;
             if (standardised) {
                 double sd = s > 0 ? Math.sqrt(s) : 1;
                 sigma[i] = sd;
-                double inv = 1.0 / sd;
-                for (int t = 0; t < dates; t++) {
-                    m[o + t] *= inv;
-                }
+                Dense.scale(m, o, 1.0 / sd, dates);
             }
         }
         return sigma;
@@ -380,10 +368,7 @@ public final class FactorFitter {
         if (first.rank() == 0) {
             return new ImputationReport(gaps.length, 0, 0, null, true, 0, emTolerance, emMaxIterations);
         }
-        double trace = 0;
-        for (double v : m) {
-            trace += v * v;
-        }
+        double trace = Dense.dot(m, 0, m, 0, m.length);
         int k = FactorCount.choose(options.rule(), first.eigenvalues(), assets, tEff, trace).k();
         // the tracked subspace starts at the exact leading eigenvectors of the mean-filled window
         int lq = Math.min(k + EM_OVERSAMPLE, first.rank());

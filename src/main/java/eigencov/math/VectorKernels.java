@@ -178,6 +178,32 @@ final class VectorKernels {
         }
     }
 
+    /** m[o + t] = r[t] (x[o + t] - mu). */
+    static void centreScale(double[] x, int o, double mu, double[] r, double[] m, int n) {
+        DoubleVector vmu = DoubleVector.broadcast(S, mu);
+        int t = 0;
+        int bound = n - L;
+        for (; t <= bound; t += L) {
+            DoubleVector.fromArray(S, x, o + t).sub(vmu).mul(DoubleVector.fromArray(S, r, t)).intoArray(m, o + t);
+        }
+        for (; t < n; t++) {
+            m[o + t] = r[t] * (x[o + t] - mu);
+        }
+    }
+
+    /** v[o + t] *= f. */
+    static void scale(double[] v, int o, double f, int n) {
+        DoubleVector vf = DoubleVector.broadcast(S, f);
+        int t = 0;
+        int bound = n - L;
+        for (; t <= bound; t += L) {
+            DoubleVector.fromArray(S, v, o + t).mul(vf).intoArray(v, o + t);
+        }
+        for (; t < n; t++) {
+            v[o + t] *= f;
+        }
+    }
+
     /**
      * C = A B' (A r x n, B l x n, row-major): rows [i0, i1) of A against rows [j0, j1) of B, two rows of A by
      * two of B at a time (four vector accumulators), lanes summed at the end.
