@@ -29,4 +29,6 @@ USER eigencov
 # bash's /dev/tcp: no curl or wget needed in the runtime image.
 HEALTHCHECK --interval=30s --timeout=5s --start-period=120s --retries=3 \
   CMD ["bash", "-c", "exec 3<>/dev/tcp/127.0.0.1/8080 && printf 'GET /health HTTP/1.0\\r\\n\\r\\n' >&3 && head -1 <&3 | grep -q ' 200 '"]
-ENTRYPOINT ["java", "-XX:MaxRAMPercentage=75", "--add-modules", "jdk.incubator.vector", "-jar", "/app/eigencov.jar", "serve"]
+# The fit's vector kernels need the JDK module jdk.incubator.vector; a runtime without it still
+# serves, with the scalar kernels, instead of failing to start.
+ENTRYPOINT ["sh", "-c", "v=; java --add-modules jdk.incubator.vector -version >/dev/null 2>&1 && v='--add-modules jdk.incubator.vector'; exec java -XX:MaxRAMPercentage=75 $v -jar /app/eigencov.jar serve \"$@\"", "eigencov"]
