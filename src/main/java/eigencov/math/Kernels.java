@@ -19,7 +19,8 @@ public final class Kernels {
         if ("scalar".equals(System.getProperty("eigencov.kernels"))) {
             return false;
         }
-        return ModuleLayer.boot().findModule("jdk.incubator.vector").isPresent();
+        // the Gram tile needs at least two doubles per vector (its 4 broadcast rows lie within one 2-vector panel)
+        return ModuleLayer.boot().findModule("jdk.incubator.vector").isPresent() && VectorKernels.lanes() >= 2;
     }
 
     /** Whether the vector kernels are in use. */

@@ -37,6 +37,10 @@ final class VectorKernels {
     private VectorKernels() {
     }
 
+    static int lanes() {
+        return L;
+    }
+
     static String describe() {
         return S.vectorBitSize() + "-bit, " + L + " doubles per vector";
     }
