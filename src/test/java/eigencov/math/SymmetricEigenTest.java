@@ -97,7 +97,7 @@ class SymmetricEigenTest {
 
     @Test
     void reduction_split_over_a_pool_gives_the_serial_result() {
-        int n = 230; // above the size where the row passes are split
+        int n = 860; // the first 60 steps have more trailing rows than the 800 from which passes are split
         double[] a = randomSymmetric(n, 77);
         java.util.concurrent.ExecutorService pool = java.util.concurrent.Executors.newFixedThreadPool(2);
         try {
@@ -112,6 +112,64 @@ class SymmetricEigenTest {
             assertTrue(r[0] < DECOMPOSITION_TOL * maxAbs(expected) * n && r[1] < 1e-12 * n, Arrays.toString(r));
         } finally {
             pool.shutdownNow();
+        }
+    }
+
+    /**
+     * Closed form: the n x n tridiagonal Toeplitz matrix with diagonal a and off-diagonal b has the
+     * eigenvalues a + 2 b cos(j pi / (n + 1)), j = 1..n (a standard result, e.g. G. D. Smith, Numerical
+     * Solution of Partial Differential Equations, from memory). A block diagonal of such blocks (zero
+     * couplings between them), including 1 x 1 and 2 x 2 blocks, checks the deflation paths of the QL
+     * iteration; a graded diagonal checks the reversal.
+     */
+    @ParameterizedTest
+    @ValueSource(ints = {1, 2, 3, 7, 50, 301})
+    void ql_eigenvalues_match_the_closed_form_of_tridiagonal_toeplitz_blocks(int n) {
+        int[] sizes = {n, 1, 2, n, 2};
+        int total = Arrays.stream(sizes).sum();
+        double[] d = new double[total];
+        double[] e = new double[total];
+        double[] expected = new double[total];
+        int o = 0;
+        for (int b = 0; b < sizes.length; b++) {
+            double diag = 1.5 + b;
+            double off = b % 2 == 0 ? -0.7 : 0.4;
+            for (int i = 0; i < sizes[b]; i++) {
+                d[o + i] = diag;
+                e[o + i] = i < sizes[b] - 1 ? off : 0;
+                expected[o + i] = diag + 2 * off * Math.cos((i + 1) * Math.PI / (sizes[b] + 1));
+            }
+            o += sizes[b];
+        }
+        double[] w = d.clone();
+        SymmetricEigen.qlEigenvalues(w, e.clone(), total);
+        Arrays.sort(w);
+        Arrays.sort(expected);
+        for (int i = 0; i < total; i++) {
+            assertEquals(expected[i], w[i], 1e-14 * (2 + sizes.length), "eigenvalue " + i);
+        }
+        // graded: the same spectrum scaled by 10^6 at the top and 1 at the bottom is reversed first
+        double[] g = new double[total];
+        double[] ge = new double[total];
+        for (int i = 0; i < total; i++) {
+            g[i] = Math.pow(10, 6.0 * (total - 1 - i) / Math.max(1, total - 1));
+        }
+        double[] dense = new double[total * total];
+        for (int i = 0; i < total; i++) {
+            dense[i * total + i] = g[i];
+            if (i < total - 1) {
+                ge[i] = 1e-3 * Math.sqrt(g[i] * g[i + 1]);
+                dense[i * total + i + 1] = ge[i];
+                dense[(i + 1) * total + i] = ge[i];
+            }
+        }
+        double[] wg = g.clone();
+        SymmetricEigen.qlEigenvalues(wg, ge.clone(), total);
+        Arrays.sort(wg);
+        double[] ej = ejmlEigenvalues(dense, total);
+        for (int i = 0; i < total; i++) {
+            assertEquals(ej[total - 1 - i], wg[i], 1e-13 * Math.abs(ej[total - 1 - i]) + 1e-15 * ej[0],
+                    "graded eigenvalue " + i);
         }
     }
 
