@@ -69,6 +69,9 @@ final class ResponseSender {
             return;
         }
         ctx.status(200);
+        // Javalin gives every response a UTF-8 character encoding, which Jetty appends to any
+        // Content-Type as ;charset=utf-8: meaningless for bytes, so cleared for binary formats
+        if (rep.binary) ctx.res().setCharacterEncoding(null);
         ctx.contentType(rep.contentType);
         if (gzip) ctx.header("Content-Encoding", "gzip");
         if (exactLength >= 0) ctx.header("Content-Length", Long.toString(exactLength));
