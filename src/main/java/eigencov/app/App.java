@@ -124,7 +124,7 @@ public final class App implements AutoCloseable {
             modules.add(new QueryRoutes(new QueryService(queryFits != null ? queryFits : served), mapper));
             modules.add(new MetricsRoutes(metrics::scrape, Metrics.CONTENT_TYPE));
             Javalin http = HttpApi.create(config.bindHost(), config.port(), config.maxBodyBytes(), config.shutdownGraceMs(),
-                    mapper, db::isReachable, ApiKeys.parse(config.apiKeys()), modules, metrics::httpRequest);
+                    config.slowRequestMs(), mapper, db::isReachable, ApiKeys.parse(config.apiKeys()), modules, metrics::httpRequest);
             if (config.demo()) new DemoLoader(config.demoDir(), panels, panelStore, modelService, fitService, mapper).load();
             return new App(config, db, metrics, http, new Fits(served, scheduler, background, poller, kernels));
         } catch (RuntimeException e) {

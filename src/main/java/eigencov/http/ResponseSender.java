@@ -83,7 +83,7 @@ final class ResponseSender {
             }
         } catch (IOException e) {
             // the status line is out, so nothing more can be said to this client: it has gone away
-            LOG.debug("request {}: client went away while the answer was written: {}", ctx.attribute("requestId"), e.toString());
+            LOG.debug("request {}: client went away while the answer was written: {}", ctx.attribute(HttpApi.REQUEST_ID_ATTRIBUTE), e.toString());
         }
     }
 
