@@ -121,7 +121,7 @@ public final class App implements AutoCloseable {
             PanelService panels = new PanelService(panelStore, config.maxAbsReturn(), scheduler, metrics);
             modules.add(new PanelRoutes(panels, config.maxBodyBytes(), mapper.getFactory()));
             modules.add(new ModelRoutes(modelService, fitService));
-            modules.add(new QueryRoutes(new QueryService(queryFits != null ? queryFits : served), mapper));
+            modules.add(new QueryRoutes(new QueryService(queryFits != null ? queryFits : served), mapper, config.maxBodyBytes()));
             modules.add(new MetricsRoutes(metrics::scrape, Metrics.CONTENT_TYPE));
             Javalin http = HttpApi.create(config.bindHost(), config.port(), config.maxBodyBytes(), config.shutdownGraceMs(),
                     config.slowRequestMs(), mapper, db::isReachable, ApiKeys.parse(config.apiKeys()), modules, metrics::httpRequest);

@@ -23,8 +23,12 @@ import java.util.concurrent.ArrayBlockingQueue;
  * well formed (no checks beyond nesting depth).
  */
 final class JsonOut implements AutoCloseable {
-    private static final int BUFFER_BYTES = 16 * 1024;
+    static final int BUFFER_BYTES = 16 * 1024;
+    /** Buffer for answers of megabytes: a quarter as many writes to the socket. */
+    static final int LARGE_BUFFER_BYTES = 64 * 1024;
     private static final int MAX_DEPTH = 32;
+    /** Longest string start {@link #quoted} reserves room for at once. */
+    private static final int QUOTED_RUN = 256;
     private static final VarHandle LONG_LE = MethodHandles.byteArrayViewVarHandle(long[].class, ByteOrder.LITTLE_ENDIAN);
     /** Largest matrix {@link #symmetricRows} renders each mirrored pair of once. */
     static final int MAX_SYMMETRIC_REUSE = 1_000;
@@ -52,7 +56,7 @@ final class JsonOut implements AutoCloseable {
     }
 
     private final OutputStream out;
-    private final byte[] buf = new byte[BUFFER_BYTES];
+    private final byte[] buf;
     private int pos;
     /** Per nesting level: whether the next element needs a comma before it. */
     private final boolean[] comma = new boolean[MAX_DEPTH];
@@ -61,7 +65,14 @@ final class JsonOut implements AutoCloseable {
     private boolean afterName;
 
     JsonOut(OutputStream out) {
+        this(out, BUFFER_BYTES);
+    }
+
+    /** @param bufferBytes bytes gathered before each write to {@code out} (at least 1 KB) */
+    JsonOut(OutputStream out, int bufferBytes) {
+        if (bufferBytes < 1024) throw new IllegalArgumentException("bufferBytes must be at least 1024, was " + bufferBytes);
         this.out = out;
+        this.buf = new byte[bufferBytes];
     }
 
     JsonOut startObject() throws IOException {
@@ -319,9 +330,18 @@ final class JsonOut implements AutoCloseable {
     }
 
     private void quoted(String s) throws IOException {
-        room(2);
+        int len = s.length();
+        room(Math.min(len, QUOTED_RUN) + 2);
         buf[pos++] = '"';
-        for (int i = 0; i < s.length(); i++) {
+        // the usual case, plain ASCII (tickers, field names, dates): no room check per character
+        int i = 0;
+        int run = Math.min(len, buf.length - pos - 1);
+        for (; i < run; i++) {
+            char c = s.charAt(i);
+            if (c >= 0x80 || ESCAPES[c] != 0) break;
+            buf[pos++] = (byte) c;
+        }
+        for (; i < len; i++) {
             char c = s.charAt(i);
             if (c < 0x80) {
                 if (ESCAPES[c] == 0) {

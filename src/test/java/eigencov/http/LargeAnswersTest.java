@@ -59,6 +59,36 @@ class LargeAnswersTest {
     }
 
     @Test
+    void json_answers_go_whole_with_a_length_when_small_and_streamed_when_they_outgrow_that() throws Exception {
+        Response small = given().contentType(ContentType.JSON).body(Map.of("tickers", MODEL.tickers().subList(0, 20)))
+                .post("/v1/models/wide/exposures");
+        small.then().statusCode(200);
+        assertEquals(Integer.toString(small.asByteArray().length), small.header("Content-Length"));
+
+        Response large = given().contentType(ContentType.JSON).body(Map.of("tickers", MODEL.tickers()))
+                .post("/v1/models/wide/exposures");
+        large.then().statusCode(200).header("Transfer-Encoding", "chunked");
+        assertTrue(large.asByteArray().length > ResponseSender.WHOLE_BODY_BYTES, "size " + large.asByteArray().length);
+        var body = QueryFixture.json(large);
+        assertEquals(NAMES, body.get("exposures").size());
+        assertEquals(MODEL.exposure(NAMES - 1, 2), body.get("exposures").get(NAMES - 1).get(2).doubleValue(), 0.0);
+        assertEquals(MODEL.specificVariance(1234), body.get("specificVariance").get(1234).doubleValue(), 0.0);
+    }
+
+    @Test
+    void a_query_body_over_the_size_limit_is_a_413_problem() {
+        Map<String, Double> weights = new java.util.LinkedHashMap<>();
+        for (String t : MODEL.tickers()) weights.put(t, 1.0 / NAMES);
+        try (App small = App.create(AppConfig.forTest("large-answers-limit").withMaxBodyBytes(4096),
+                new InMemoryFits().add(TestFits.served(5, "wide", LocalDate.parse("2025-03-31"), MODEL, 30, List.of(), 4L))).start()) {
+            given().port(small.port()).contentType(ContentType.JSON).body(Map.of("weights", weights)).post("/v1/models/wide/risk")
+                    .then().statusCode(413).contentType(Problem.CONTENT_TYPE);
+            given().port(small.port()).contentType(ContentType.JSON).body(Map.of("weights", Map.of("LONGTICKERNAME.0001", 1.0)))
+                    .post("/v1/models/wide/risk").then().statusCode(200);
+        }
+    }
+
+    @Test
     void a_small_answer_after_a_large_header_is_unaffected() {
         given().accept("application/x-npy").contentType(ContentType.JSON).body(Map.of("tickers", MODEL.tickers()))
                 .post("/v1/models/wide/exposures").then().statusCode(200);
