@@ -24,8 +24,13 @@ import java.util.concurrent.ArrayBlockingQueue;
  */
 final class JsonOut implements AutoCloseable {
     static final int BUFFER_BYTES = 16 * 1024;
-    /** Buffer for answers of megabytes: a quarter as many writes to the socket. */
-    static final int LARGE_BUFFER_BYTES = 64 * 1024;
+    /**
+     * Buffer for large answers. Each write to the socket wakes the client to read it (on one machine
+     * the client then preempts the writer: a perf record of the risk benchmark found most of the
+     * server's context switches right after its writes), so large answers go out in few large
+     * writes. Kept below half a G1 region (512 KB at the smallest) so that it is no humongous object.
+     */
+    static final int LARGE_BUFFER_BYTES = 256 * 1024;
     private static final int MAX_DEPTH = 32;
     /** Longest string start {@link #quoted} reserves room for at once. */
     private static final int QUOTED_RUN = 256;

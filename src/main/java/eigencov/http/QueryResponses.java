@@ -261,7 +261,7 @@ final class QueryResponses {
     /** An object holding "fit", "caution", then {@code fields}. */
     private static void json(Context ctx, FitRef fit, String key, long approxBytes, JsonFields fields) {
         ResponseSender.send(ctx, fit, Representation.JSON, key, approxBytes, true, out -> {
-            try (JsonOut g = new JsonOut(out, approxBytes > 4 * JsonOut.LARGE_BUFFER_BYTES ? JsonOut.LARGE_BUFFER_BYTES : JsonOut.BUFFER_BYTES)) {
+            try (JsonOut g = new JsonOut(out, approxBytes > ResponseSender.WHOLE_BODY_BYTES ? JsonOut.LARGE_BUFFER_BYTES : JsonOut.BUFFER_BYTES)) {
                 g.startObject();
                 g.startObject("fit");
                 g.number("id", fit.id());
