@@ -113,6 +113,43 @@ final class JsonOut implements AutoCloseable {
         return this;
     }
 
+    /**
+     * A field name encoded once ({@code "name":}), for names written thousands of times per answer
+     * (the fields of each asset of a risk answer).
+     */
+    static final class Name {
+        final byte[] bytes;
+
+        Name(String field) {
+            try {
+                java.io.ByteArrayOutputStream b = new java.io.ByteArrayOutputStream();
+                try (JsonOut g = new JsonOut(b)) {
+                    g.name(field);
+                }
+                bytes = b.toByteArray();
+            } catch (IOException e) {
+                throw new java.io.UncheckedIOException(e);
+            }
+        }
+    }
+
+    JsonOut name(Name field) throws IOException {
+        separator();
+        byte[] b = field.bytes;
+        room(b.length);
+        for (byte x : b) buf[pos++] = x;
+        afterName = true;
+        return this;
+    }
+
+    JsonOut number(Name field, double value) throws IOException {
+        return name(field).number(value);
+    }
+
+    JsonOut string(Name field, String value) throws IOException {
+        return name(field).string(value);
+    }
+
     JsonOut string(String value) throws IOException {
         separator();
         quoted(value);
