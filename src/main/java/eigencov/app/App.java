@@ -122,10 +122,10 @@ public final class App implements AutoCloseable {
             PanelService panels = new PanelService(panelStore, config.maxAbsReturn(), scheduler, metrics);
             modules.add(new PanelRoutes(panels, config.maxBodyBytes(), mapper.getFactory()));
             modules.add(new ModelRoutes(modelService, fitService));
-            modules.add(new QueryRoutes(new QueryService(queryFits != null ? queryFits : served), mapper));
+            modules.add(new QueryRoutes(new QueryService(queryFits != null ? queryFits : served), mapper, config.maxBodyBytes()));
             modules.add(new MetricsRoutes(metrics::scrape, Metrics.CONTENT_TYPE));
             Javalin http = HttpApi.create(config.bindHost(), config.port(), config.maxBodyBytes(), config.shutdownGraceMs(),
-                    mapper, db::isReachable, ApiKeys.parse(config.apiKeys()), modules, metrics::httpRequest);
+                    config.slowRequestMs(), mapper, db::isReachable, ApiKeys.parse(config.apiKeys()), modules, metrics::httpRequest);
             if (config.demo()) new DemoLoader(config.demoDir(), panels, panelStore, modelService, fitService, mapper).load();
             return new App(config, db, metrics, http, new Fits(served, scheduler, background, poller, kernels));
         } catch (RuntimeException e) {

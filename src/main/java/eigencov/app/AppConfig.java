@@ -1,6 +1,7 @@
 package eigencov.app;
 
 import eigencov.http.ApiKeys;
+import eigencov.http.HttpApi;
 
 import java.nio.file.Path;
 import java.util.ArrayList;
@@ -26,6 +27,8 @@ import java.util.Map;
  * @param maxBodyBytes    largest accepted request body (413 above)
  * @param maxAbsReturn    largest accepted |return| (simple return; 10 = +1000 %)
  * @param shutdownGraceMs how long a stop waits for in-flight requests
+ * @param slowRequestMs   a request taking at least this long is logged (at INFO) even when it succeeded;
+ *                        other successful requests are logged at DEBUG only
  */
 public record AppConfig(
         int port,
@@ -39,7 +42,8 @@ public record AppConfig(
         String apiKeys,
         long maxBodyBytes,
         double maxAbsReturn,
-        long shutdownGraceMs) {
+        long shutdownGraceMs,
+        long slowRequestMs) {
 
     public static final int DEFAULT_PORT = 8080;
     public static final String DEFAULT_DB_URL = "jdbc:h2:file:./data/eigencov;AUTO_SERVER=FALSE";
@@ -48,6 +52,7 @@ public record AppConfig(
     public static final long DEFAULT_MAX_BODY_BYTES = 128L * 1024 * 1024;
     public static final double DEFAULT_MAX_ABS_RETURN = 10.0;
     public static final long DEFAULT_SHUTDOWN_GRACE_MS = 10_000;
+    public static final long DEFAULT_SLOW_REQUEST_MS = HttpApi.DEFAULT_SLOW_REQUEST_MS;
 
     public AppConfig {
         if (port < 0 || port > 65_535) throw new ConfigException("port must be between 0 and 65535, was " + port);
@@ -57,6 +62,7 @@ public record AppConfig(
         if (!(maxAbsReturn > 0) || Double.isInfinite(maxAbsReturn))
             throw new ConfigException("maxAbsReturn must be a positive finite number, was " + maxAbsReturn);
         if (shutdownGraceMs < 0) throw new ConfigException("shutdownGraceMs must not be negative, was " + shutdownGraceMs);
+        if (slowRequestMs < 1) throw new ConfigException("slowRequestMs must be at least 1, was " + slowRequestMs);
         dbUser = dbUser == null ? "" : dbUser;
         dbPassword = dbPassword == null ? "" : dbPassword;
         apiKeys = apiKeys == null ? "" : apiKeys.trim();
@@ -71,7 +77,7 @@ public record AppConfig(
     /** Defaults for everything; tests start from here and override with {@code with...}. */
     public static AppConfig defaults() {
         return new AppConfig(DEFAULT_PORT, null, DEFAULT_DB_URL, "", "", DEFAULT_POOL_SIZE, false, DEFAULT_DEMO_DIR, "",
-                DEFAULT_MAX_BODY_BYTES, DEFAULT_MAX_ABS_RETURN, DEFAULT_SHUTDOWN_GRACE_MS);
+                DEFAULT_MAX_BODY_BYTES, DEFAULT_MAX_ABS_RETURN, DEFAULT_SHUTDOWN_GRACE_MS, DEFAULT_SLOW_REQUEST_MS);
     }
 
     /** System property naming the store test apps use: {@code h2} (default) or {@code postgresql}. */
@@ -90,12 +96,12 @@ public record AppConfig(
         return base.withDbUrl(TestStore.named(store).freshJdbcUrl(databaseName));
     }
 
-    public AppConfig withPort(int p) { return new AppConfig(p, host, dbUrl, dbUser, dbPassword, dbPoolSize, demo, demoDir, apiKeys, maxBodyBytes, maxAbsReturn, shutdownGraceMs); }
-    public AppConfig withDbUrl(String u) { return new AppConfig(port, host, u, dbUser, dbPassword, dbPoolSize, demo, demoDir, apiKeys, maxBodyBytes, maxAbsReturn, shutdownGraceMs); }
-    public AppConfig withDemo(boolean d, Path dir) { return new AppConfig(port, host, dbUrl, dbUser, dbPassword, dbPoolSize, d, dir, apiKeys, maxBodyBytes, maxAbsReturn, shutdownGraceMs); }
-    public AppConfig withApiKeys(String k) { return new AppConfig(port, host, dbUrl, dbUser, dbPassword, dbPoolSize, demo, demoDir, k, maxBodyBytes, maxAbsReturn, shutdownGraceMs); }
-    public AppConfig withMaxBodyBytes(long b) { return new AppConfig(port, host, dbUrl, dbUser, dbPassword, dbPoolSize, demo, demoDir, apiKeys, b, maxAbsReturn, shutdownGraceMs); }
-    public AppConfig withMaxAbsReturn(double r) { return new AppConfig(port, host, dbUrl, dbUser, dbPassword, dbPoolSize, demo, demoDir, apiKeys, maxBodyBytes, r, shutdownGraceMs); }
+    public AppConfig withPort(int p) { return new AppConfig(p, host, dbUrl, dbUser, dbPassword, dbPoolSize, demo, demoDir, apiKeys, maxBodyBytes, maxAbsReturn, shutdownGraceMs, slowRequestMs); }
+    public AppConfig withDbUrl(String u) { return new AppConfig(port, host, u, dbUser, dbPassword, dbPoolSize, demo, demoDir, apiKeys, maxBodyBytes, maxAbsReturn, shutdownGraceMs, slowRequestMs); }
+    public AppConfig withDemo(boolean d, Path dir) { return new AppConfig(port, host, dbUrl, dbUser, dbPassword, dbPoolSize, d, dir, apiKeys, maxBodyBytes, maxAbsReturn, shutdownGraceMs, slowRequestMs); }
+    public AppConfig withApiKeys(String k) { return new AppConfig(port, host, dbUrl, dbUser, dbPassword, dbPoolSize, demo, demoDir, k, maxBodyBytes, maxAbsReturn, shutdownGraceMs, slowRequestMs); }
+    public AppConfig withMaxBodyBytes(long b) { return new AppConfig(port, host, dbUrl, dbUser, dbPassword, dbPoolSize, demo, demoDir, apiKeys, b, maxAbsReturn, shutdownGraceMs, slowRequestMs); }
+    public AppConfig withMaxAbsReturn(double r) { return new AppConfig(port, host, dbUrl, dbUser, dbPassword, dbPoolSize, demo, demoDir, apiKeys, maxBodyBytes, r, shutdownGraceMs, slowRequestMs); }
 
     /** True when no API keys are configured: the server then binds to loopback only. */
     public boolean authDisabled() {
@@ -123,6 +129,7 @@ public record AppConfig(
         m.put("maxBodyBytes", Long.toString(maxBodyBytes));
         m.put("maxAbsReturn", Double.toString(maxAbsReturn));
         m.put("shutdownGraceMs", Long.toString(shutdownGraceMs));
+        m.put("slowRequestMs", Long.toString(slowRequestMs));
         return m;
     }
 
@@ -144,7 +151,8 @@ public record AppConfig(
      * {@code --port N --host H --db URL --db-user U --db-password P --demo --demo-dir DIR}.
      * Environment: {@code EIGENCOV_PORT, EIGENCOV_HOST, EIGENCOV_DB_URL, EIGENCOV_DB_USER,
      * EIGENCOV_DB_PASSWORD, EIGENCOV_DB_POOL_SIZE, EIGENCOV_DEMO, EIGENCOV_DEMO_DIR,
-     * EIGENCOV_API_KEYS, EIGENCOV_MAX_BODY_BYTES, EIGENCOV_MAX_ABS_RETURN, EIGENCOV_SHUTDOWN_GRACE_MS}.
+     * EIGENCOV_API_KEYS, EIGENCOV_MAX_BODY_BYTES, EIGENCOV_MAX_ABS_RETURN, EIGENCOV_SHUTDOWN_GRACE_MS,
+     * EIGENCOV_SLOW_REQUEST_MS}.
      */
     public static AppConfig fromArgs(List<String> args, Map<String, String> env) {
         Map<String, String> v = new LinkedHashMap<>();
@@ -184,11 +192,13 @@ public record AppConfig(
                 v.getOrDefault("api-keys", ""),
                 longValue(v, "max-body-bytes", d.maxBodyBytes()),
                 doubleValue(v, "max-abs-return", d.maxAbsReturn()),
-                longValue(v, "shutdown-grace-ms", d.shutdownGraceMs()));
+                longValue(v, "shutdown-grace-ms", d.shutdownGraceMs()),
+                longValue(v, "slow-request-ms", d.slowRequestMs()));
     }
 
     private static final List<String> KNOWN = List.of("port", "host", "db", "db-user", "db-password", "db-pool-size",
-            "demo", "demo-dir", "api-keys", "max-body-bytes", "max-abs-return", "shutdown-grace-ms");
+            "demo", "demo-dir", "api-keys", "max-body-bytes", "max-abs-return", "shutdown-grace-ms",
+            "slow-request-ms");
 
     private static int intValue(Map<String, String> v, String key, int def) {
         String s = v.get(key);

@@ -26,6 +26,8 @@ import java.sql.SQLTransientConnectionException;
 import java.util.List;
 import java.util.Map;
 import java.util.UUID;
+import java.util.concurrent.ThreadLocalRandom;
+import java.util.regex.Pattern;
 import java.util.function.BooleanSupplier;
 
 /**
@@ -35,8 +37,18 @@ import java.util.function.BooleanSupplier;
 public final class HttpApi {
     private static final Logger LOG = LoggerFactory.getLogger("eigencov.http");
     public static final String REQUEST_ID = "X-Request-Id";
-    /** Room for response headers (Jetty's default is 8 KB). */
-    static final int RESPONSE_HEADER_BYTES = 128 * 1024;
+    /** The request's id among the Javalin context attributes. */
+    static final String REQUEST_ID_ATTRIBUTE = "requestId";
+    /** A request id a client may choose (anything else is replaced by one of ours). */
+    private static final Pattern CLIENT_REQUEST_ID = Pattern.compile("[A-Za-z0-9._:-]{1,100}");
+    /** Requests taking at least this long are logged at INFO although they succeeded. */
+    public static final long DEFAULT_SLOW_REQUEST_MS = 1_000;
+    /**
+     * Most room for response headers: .npy answers list their row tickers in a header, and 3,000
+     * names of up to 32 characters is about 100 KB. Jetty starts every response with its default
+     * 8 KB header buffer and takes one this large only for a response whose headers overflow that.
+     */
+    static final int MAX_RESPONSE_HEADER_BYTES = 128 * 1024;
 
     private HttpApi() {
     }
@@ -73,6 +85,16 @@ public final class HttpApi {
     /** As above, telling {@code observer} about every finished request (route template, status, duration). */
     public static Javalin create(String host, int port, long maxBodyBytes, long stopGraceMs, ObjectMapper mapper,
                                  BooleanSupplier ready, ApiKeys keys, List<RouteModule> modules, RequestObserver observer) {
+        return create(host, port, maxBodyBytes, stopGraceMs, DEFAULT_SLOW_REQUEST_MS, mapper, ready, keys, modules, observer);
+    }
+
+    /**
+     * As above, with the request log's slow-request threshold ({@link AccessLog}: successful requests
+     * are logged at DEBUG, failed or slower ones at INFO and above).
+     */
+    public static Javalin create(String host, int port, long maxBodyBytes, long stopGraceMs, long slowRequestMs, ObjectMapper mapper,
+                                 BooleanSupplier ready, ApiKeys keys, List<RouteModule> modules, RequestObserver observer) {
+        AccessLog accessLog = new AccessLog(slowRequestMs);
         return Javalin.create(config -> {
             config.startup.showJavalinBanner = false;
             config.startup.showOldJavalinVersionWarning = false;
@@ -85,23 +107,28 @@ public final class HttpApi {
                 server.setStopTimeout(stopGraceMs);
                 server.setHandler(new GracefulHandler());
             });
-            // .npy answers list their row tickers in a header: 3,000 names of up to 32 characters is ~100 KB
-            config.jetty.modifyHttpConfiguration(http -> http.setResponseHeaderSize(RESPONSE_HEADER_BYTES));
+            // Not setResponseHeaderSize: Jetty takes a buffer of that size for the headers of EVERY
+            // response, and one of 128 KB is above its buffer pool's largest bucket (64 KB), so each
+            // response allocated and zeroed a fresh direct buffer (freed only by GC): measured as the
+            // largest single cost of small answers, and a source of GC work behind the latency tail.
+            config.jetty.modifyHttpConfiguration(http -> http.setMaxResponseHeaderSize(MAX_RESPONSE_HEADER_BYTES));
             config.http.maxRequestSize = maxBodyBytes;
             config.http.defaultContentType = "application/json";
             config.jsonMapper(new JavalinJackson(mapper, false));
             config.requestLogger.http((ctx, ms) -> {
-                LOG.info("{} {} {} {} {}ms", ctx.attribute("requestId"), ctx.method(), ctx.path(), ctx.statusCode(), Math.round(ms));
-                observer.finished(ctx.method().name(), routeOf(ctx), ctx.statusCode(), (long) (ms * 1_000_000.0));
+                long nanos = (long) (ms * 1_000_000.0);
+                accessLog.finished(ctx, nanos);
+                observer.finished(ctx.method().name(), routeOf(ctx), ctx.statusCode(), nanos);
             });
 
+            // one filter for both: each before-filter is matched against every request
             config.routes.before(ctx -> {
                 String id = ctx.header(REQUEST_ID);
-                if (id == null || id.isBlank() || id.length() > 100 || !id.matches("[A-Za-z0-9._:-]+")) id = UUID.randomUUID().toString();
-                ctx.attribute("requestId", id);
+                if (id == null || !CLIENT_REQUEST_ID.matcher(id).matches()) id = newRequestId();
+                ctx.attribute(REQUEST_ID_ATTRIBUTE, id);
                 ctx.header(REQUEST_ID, id);
+                keys.authorize(ctx);
             });
-            config.routes.before(keys::authorize);
 
             config.routes.get("/health", ctx -> ctx.json(Map.of("status", "up")));
             config.routes.get("/ready", ctx -> {
@@ -139,9 +166,9 @@ public final class HttpApi {
                     unavailable(ctx, "the store is not reachable right now");
                     return;
                 }
-                LOG.error("request {} {} {} failed", ctx.attribute("requestId"), ctx.method(), ctx.path(), e);
+                LOG.error("request {} {} {} failed", ctx.attribute(REQUEST_ID_ATTRIBUTE), ctx.method(), ctx.path(), e);
                 problem(ctx, new ApiException(500, "internal", "Internal error",
-                        "the server could not complete the request; quote request id " + ctx.attribute("requestId"), List.of()));
+                        "the server could not complete the request; quote request id " + ctx.attribute(REQUEST_ID_ATTRIBUTE), List.of()));
             });
             config.routes.error(404, ctx -> {
                 if (!isProblem(ctx)) problem(ctx, new ApiException(404, "not-found", "Not found", "no endpoint " + ctx.method() + " " + ctx.path(), List.of()));
@@ -150,6 +177,19 @@ public final class HttpApi {
                 if (!isProblem(ctx)) problem(ctx, new ApiException(405, "method-not-allowed", "Method not allowed", ctx.method() + " is not allowed on " + ctx.path(), List.of()));
             });
         });
+    }
+
+    /**
+     * A fresh request id in the random-UUID layout. From {@link ThreadLocalRandom}, not
+     * {@code UUID.randomUUID()}: a request id only has to be unique enough to find a request in the
+     * logs, not unguessable, and SecureRandom is a synchronised, comparatively slow source that every
+     * request went through.
+     */
+    static String newRequestId() {
+        ThreadLocalRandom r = ThreadLocalRandom.current();
+        long msb = (r.nextLong() & ~0xF000L) | 0x4000L; // version 4
+        long lsb = (r.nextLong() & 0x3FFF_FFFF_FFFF_FFFFL) | 0x8000_0000_0000_0000L; // IETF variant
+        return new UUID(msb, lsb).toString();
     }
 
     /** Route label of a request that matched no route (keeps scanners from adding a series per path). */
@@ -166,7 +206,7 @@ public final class HttpApi {
     }
 
     private static void unavailable(Context ctx, String detail) {
-        LOG.warn("request {} {} {}: {}", ctx.attribute("requestId"), ctx.method(), ctx.path(), detail);
+        LOG.warn("request {} {} {}: {}", ctx.attribute(REQUEST_ID_ATTRIBUTE), ctx.method(), ctx.path(), detail);
         ctx.header("Retry-After", "5");
         problem(ctx, new ApiException(503, "unavailable", "Service unavailable", detail, List.of()));
     }

@@ -1,11 +1,15 @@
 package eigencov.http;
 
 import java.io.IOException;
+import java.lang.invoke.MethodHandles;
+import java.lang.invoke.VarHandle;
+import java.nio.ByteOrder;
 import java.io.OutputStream;
 import java.nio.DoubleBuffer;
 import java.nio.charset.StandardCharsets;
 import java.util.Arrays;
 import java.util.List;
+import java.util.concurrent.ArrayBlockingQueue;
 
 /**
  * A compact UTF-8 JSON writer for query answers, producing exactly the bytes Jackson's
@@ -19,10 +23,28 @@ import java.util.List;
  * well formed (no checks beyond nesting depth).
  */
 final class JsonOut implements AutoCloseable {
-    private static final int BUFFER_BYTES = 16 * 1024;
+    static final int BUFFER_BYTES = 16 * 1024;
+    /**
+     * Buffer for large answers. Each write to the socket wakes the client to read it (on one machine
+     * the client then preempts the writer: a perf record of the risk benchmark found most of the
+     * server's context switches right after its writes), so large answers go out in few large
+     * writes. Kept below half a G1 region (512 KB at the smallest) so that it is no humongous object.
+     */
+    static final int LARGE_BUFFER_BYTES = 256 * 1024;
     private static final int MAX_DEPTH = 32;
+    /** Longest string start {@link #quoted} reserves room for at once. */
+    private static final int QUOTED_RUN = 256;
+    private static final VarHandle LONG_LE = MethodHandles.byteArrayViewVarHandle(long[].class, ByteOrder.LITTLE_ENDIAN);
     /** Largest matrix {@link #symmetricRows} renders each mirrored pair of once. */
     static final int MAX_SYMMETRIC_REUSE = 1_000;
+    /**
+     * Triangle texts kept for reuse between answers, at most this many and this large (a 500-name
+     * matrix needs about 3 MB, 700 names 6 MB): allocating them afresh for each answer was most of
+     * the garbage of large covariance answers, as humongous objects that start G1 marking cycles.
+     */
+    static final int SPARE_TRIANGLES = 2;
+    static final int MAX_SPARE_TRIANGLE_BYTES = 8 << 20;
+    private static final ArrayBlockingQueue<TriangleText> SPARE = new ArrayBlockingQueue<>(SPARE_TRIANGLES);
     private static final byte[] HEX = "0123456789ABCDEF".getBytes(StandardCharsets.US_ASCII);
     /** Escape of each ASCII character: 0 none, 'u' as a backslash-u escape (u00XX), else the letter after the backslash. */
     private static final byte[] ESCAPES = new byte[128];
@@ -39,7 +61,7 @@ final class JsonOut implements AutoCloseable {
     }
 
     private final OutputStream out;
-    private final byte[] buf = new byte[BUFFER_BYTES];
+    private final byte[] buf;
     private int pos;
     /** Per nesting level: whether the next element needs a comma before it. */
     private final boolean[] comma = new boolean[MAX_DEPTH];
@@ -48,7 +70,14 @@ final class JsonOut implements AutoCloseable {
     private boolean afterName;
 
     JsonOut(OutputStream out) {
+        this(out, BUFFER_BYTES);
+    }
+
+    /** @param bufferBytes bytes gathered before each write to {@code out} (at least 1 KB) */
+    JsonOut(OutputStream out, int bufferBytes) {
+        if (bufferBytes < 1024) throw new IllegalArgumentException("bufferBytes must be at least 1024, was " + bufferBytes);
         this.out = out;
+        this.buf = new byte[bufferBytes];
     }
 
     JsonOut startObject() throws IOException {
@@ -84,6 +113,43 @@ final class JsonOut implements AutoCloseable {
         return this;
     }
 
+    /**
+     * A field name encoded once ({@code "name":}), for names written thousands of times per answer
+     * (the fields of each asset of a risk answer).
+     */
+    static final class Name {
+        final byte[] bytes;
+
+        Name(String field) {
+            try {
+                java.io.ByteArrayOutputStream b = new java.io.ByteArrayOutputStream();
+                try (JsonOut g = new JsonOut(b)) {
+                    g.name(field);
+                }
+                bytes = b.toByteArray();
+            } catch (IOException e) {
+                throw new java.io.UncheckedIOException(e);
+            }
+        }
+    }
+
+    JsonOut name(Name field) throws IOException {
+        separator();
+        byte[] b = field.bytes;
+        room(b.length);
+        for (byte x : b) buf[pos++] = x;
+        afterName = true;
+        return this;
+    }
+
+    JsonOut number(Name field, double value) throws IOException {
+        return name(field).number(value);
+    }
+
+    JsonOut string(Name field, String value) throws IOException {
+        return name(field).string(value);
+    }
+
     JsonOut string(String value) throws IOException {
         separator();
         quoted(value);
@@ -111,7 +177,7 @@ final class JsonOut implements AutoCloseable {
             quoted(Double.toString(value));
             return this;
         }
-        room(ShortestDouble.MAX_CHARS);
+        room(ShortestDouble.ROOM);
         pos = ShortestDouble.write(value, buf, pos);
         return this;
     }
@@ -170,8 +236,20 @@ final class JsonOut implements AutoCloseable {
             }
             return endArray();
         }
-        int[] start = new int[n * (n - 1) / 2 + 1]; // upper entry t's text is text[start[t] .. start[t + 1])
-        byte[] text = new byte[Math.max(64, n * (n - 1) / 2 * 20)];
+        int upper = n * (n - 1) / 2;
+        TriangleText tt = TriangleText.take(upper);
+        try {
+            symmetricRows(field, m, n, tt);
+        } finally {
+            tt.giveBack();
+        }
+        return this;
+    }
+
+    private void symmetricRows(String field, DoubleBuffer m, int n, TriangleText tt) throws IOException {
+        int[] start = tt.start; // upper entry t's text is text[start[t] .. start[t + 1])
+        byte[] text = tt.text;
+        start[0] = 0;
         int t = 0; // upper entries are numbered in row order
         startArray(field);
         for (int r = 0; r < n; r++) {
@@ -183,16 +261,16 @@ final class JsonOut implements AutoCloseable {
                     int u = c * (2 * n - c - 1) / 2 + (r - c - 1);
                     int len = start[u + 1] - start[u];
                     separator();
-                    room(len);
-                    System.arraycopy(text, start[u], buf, pos, len);
+                    room(ShortestDouble.MAX_CHARS);
+                    copyNumber(text, start[u], buf, pos);
                     pos += len;
                 } else if (c > r && Double.isFinite(v)) {
                     separator();
-                    room(ShortestDouble.MAX_CHARS);
+                    room(ShortestDouble.ROOM);
                     int end = ShortestDouble.write(v, buf, pos);
                     int len = end - pos;
-                    if (start[t] + len > text.length) text = Arrays.copyOf(text, Math.max(text.length * 3 / 2, start[t] + len));
-                    System.arraycopy(buf, pos, text, start[t], len);
+                    if (start[t] + ShortestDouble.MAX_CHARS > text.length) text = tt.grow(start[t] + ShortestDouble.MAX_CHARS);
+                    copyNumber(buf, pos, text, start[t]);
                     start[t + 1] = start[t] + len;
                     t++;
                     pos = end;
@@ -203,7 +281,46 @@ final class JsonOut implements AutoCloseable {
             }
             endArray();
         }
-        return endArray();
+        endArray();
+    }
+
+    /**
+     * Copies the {@link ShortestDouble#MAX_CHARS} bytes from {@code from} on: a rendered number and
+     * whatever follows it, which the next write overwrites. Three 8-byte moves instead of a call to
+     * System.arraycopy for every ~20-byte number (the copy stub's call was a profile's top entry).
+     */
+    private static void copyNumber(byte[] src, int from, byte[] dst, int to) {
+        LONG_LE.set(dst, to, (long) LONG_LE.get(src, from));
+        LONG_LE.set(dst, to + 8, (long) LONG_LE.get(src, from + 8));
+        LONG_LE.set(dst, to + 16, (long) LONG_LE.get(src, from + 16));
+    }
+
+    /** The rendered upper triangle of a matrix being written, taken from the spares when one is free. */
+    private static final class TriangleText {
+        int[] start;
+        byte[] text;
+
+        /**
+         * Room for {@code upper} entries: offsets, and text at the longest rendering of each (so no
+         * regrowth, and {@link #copyNumber} may read and write the longest rendering from any entry).
+         */
+        static TriangleText take(int upper) {
+            TriangleText tt = SPARE.poll();
+            if (tt == null) tt = new TriangleText();
+            if (tt.start == null || tt.start.length < upper + 1) tt.start = new int[upper + 1];
+            long bytes = Math.max(64, (long) upper * ShortestDouble.MAX_CHARS);
+            if (tt.text == null || tt.text.length < bytes) tt.text = new byte[(int) bytes];
+            return tt;
+        }
+
+        byte[] grow(int atLeast) {
+            text = Arrays.copyOf(text, Math.max(text.length * 3 / 2, atLeast));
+            return text;
+        }
+
+        void giveBack() {
+            if ((long) text.length + 4L * start.length <= MAX_SPARE_TRIANGLE_BYTES) SPARE.offer(this);
+        }
     }
 
     /** Writes what is buffered to the stream (without flushing the stream). */
@@ -255,9 +372,18 @@ final class JsonOut implements AutoCloseable {
     }
 
     private void quoted(String s) throws IOException {
-        room(2);
+        int len = s.length();
+        room(Math.min(len, QUOTED_RUN) + 2);
         buf[pos++] = '"';
-        for (int i = 0; i < s.length(); i++) {
+        // the usual case, plain ASCII (tickers, field names, dates): no room check per character
+        int i = 0;
+        int run = Math.min(len, buf.length - pos - 1);
+        for (; i < run; i++) {
+            char c = s.charAt(i);
+            if (c >= 0x80 || ESCAPES[c] != 0) break;
+            buf[pos++] = (byte) c;
+        }
+        for (; i < len; i++) {
             char c = s.charAt(i);
             if (c < 0x80) {
                 if (ESCAPES[c] == 0) {

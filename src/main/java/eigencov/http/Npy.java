@@ -19,7 +19,8 @@ final class Npy {
     static final String MEDIA_TYPE = "application/x-npy";
     private static final byte[] MAGIC = {(byte) 0x93, 'N', 'U', 'M', 'P', 'Y', 1, 0};
     private static final int ALIGN = 64;
-    private static final int CHUNK_DOUBLES = 8 * 1024;
+    /** 256 KB per write: few wake-ups of the reader, and no humongous array (see JsonOut.LARGE_BUFFER_BYTES). */
+    private static final int CHUNK_DOUBLES = 32 * 1024;
 
     private Npy() {
     }
@@ -31,7 +32,7 @@ final class Npy {
 
     /**
      * Writes the file of a {@code rows x cols} matrix (row-major {@code values}) to {@code out},
-     * through one 64 KB buffer: no copy of the whole matrix is made.
+     * through one 256 KB buffer: no copy of the whole matrix is made.
      */
     static void write(OutputStream out, int rows, int cols, double[] values) throws IOException {
         write(out, rows, cols, DoubleBuffer.wrap(values));

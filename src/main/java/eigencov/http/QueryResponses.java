@@ -34,6 +34,14 @@ import java.util.List;
  * in {@code X-Omitted} for CSV and {@code .npy}, and in {@code "omitted"} for JSON.
  */
 final class QueryResponses {
+    private static final JsonOut.Name TICKER = new JsonOut.Name("ticker");
+    private static final JsonOut.Name WEIGHT = new JsonOut.Name("weight");
+    private static final JsonOut.Name ACTIVE_WEIGHT = new JsonOut.Name("activeWeight");
+    private static final JsonOut.Name MARGINAL = new JsonOut.Name("marginal");
+    private static final JsonOut.Name CONTRIBUTION = new JsonOut.Name("contribution");
+    private static final JsonOut.Name SPECIFIC_CONTRIBUTION = new JsonOut.Name("specificContribution");
+    private static final JsonOut.Name BETA_TO_FIRST_FACTOR = new JsonOut.Name("betaToFirstFactor");
+
     /** Rough JSON size of one double (digits, exponent, separator), for the compression decision. */
     private static final int BYTES_PER_NUMBER = 22;
 
@@ -194,12 +202,12 @@ final class QueryResponses {
             g.startArray("byAsset");
             for (int i = 0; i < n; i++) {
                 g.startObject();
-                g.string("ticker", a.tickers().get(i));
-                g.number("weight", w[i]);
-                g.number("marginal", mcr[i]);
-                g.number("contribution", ccr[i]);
-                g.number("specificContribution", spec[i]);
-                g.number("betaToFirstFactor", beta[i]);
+                g.string(TICKER, a.tickers().get(i));
+                g.number(WEIGHT, w[i]);
+                g.number(MARGINAL, mcr[i]);
+                g.number(CONTRIBUTION, ccr[i]);
+                g.number(SPECIFIC_CONTRIBUTION, spec[i]);
+                g.number(BETA_TO_FIRST_FACTOR, beta[i]);
                 g.endObject();
             }
             g.endArray();
@@ -222,11 +230,11 @@ final class QueryResponses {
         g.startArray("byAsset");
         for (int i = 0; i < aw.length; i++) {
             g.startObject();
-            g.string("ticker", tickers.get(i));
-            g.number("activeWeight", aw[i]);
-            g.number("marginal", mcr[i]);
-            g.number("contribution", ccr[i]);
-            g.number("specificContribution", spec[i]);
+            g.string(TICKER, tickers.get(i));
+            g.number(ACTIVE_WEIGHT, aw[i]);
+            g.number(MARGINAL, mcr[i]);
+            g.number(CONTRIBUTION, ccr[i]);
+            g.number(SPECIFIC_CONTRIBUTION, spec[i]);
             g.endObject();
         }
         g.endArray();
@@ -261,7 +269,7 @@ final class QueryResponses {
     /** An object holding "fit", "caution", then {@code fields}. */
     private static void json(Context ctx, FitRef fit, String key, long approxBytes, JsonFields fields) {
         ResponseSender.send(ctx, fit, Representation.JSON, key, approxBytes, true, out -> {
-            try (JsonOut g = new JsonOut(out)) {
+            try (JsonOut g = new JsonOut(out, approxBytes > ResponseSender.WHOLE_BODY_BYTES ? JsonOut.LARGE_BUFFER_BYTES : JsonOut.BUFFER_BYTES)) {
                 g.startObject();
                 g.startObject("fit");
                 g.number("id", fit.id());

@@ -44,13 +44,16 @@ public final class QueryRoutes implements RouteModule {
     private static final Set<String> FACTOR_RETURNS = with(FIT_ONLY, "from", "to");
 
     private final QueryService service;
+    private final long maxBodyBytes;
     private final QueryResponses responses;
     private final ObjectReader covarianceBody;
     private final ObjectReader exposuresBody;
     private final ObjectReader riskBody;
 
-    public QueryRoutes(QueryService service, ObjectMapper mapper) {
+    /** @param maxBodyBytes largest request body read (413 above), counted on the stream */
+    public QueryRoutes(QueryService service, ObjectMapper mapper, long maxBodyBytes) {
         this.service = service;
+        this.maxBodyBytes = maxBodyBytes;
         this.responses = new QueryResponses();
         this.covarianceBody = strictReader(mapper, CovarianceBody.class);
         this.exposuresBody = strictReader(mapper, ExposuresBody.class);
@@ -132,7 +135,7 @@ public final class QueryRoutes implements RouteModule {
     private void exposuresPost(Context ctx) throws IOException {
         QueryParams p = QueryParams.of(ctx.queryParamMap(), QueryParams.SELECTION);
         Representation rep = Representation.negotiate(ctx.header("Accept"), TABULAR);
-        exposures(ctx, p, rep, new ExposuresQuery(QueryRoutes.<ExposuresBody>body(ctx, exposuresBody).tickers(), p.missing()));
+        exposures(ctx, p, rep, new ExposuresQuery(this.<ExposuresBody>body(ctx, exposuresBody).tickers(), p.missing()));
     }
 
     private void exposures(Context ctx, QueryParams p, Representation rep, ExposuresQuery q) {
@@ -167,7 +170,7 @@ public final class QueryRoutes implements RouteModule {
      * benchmark showed decimal formatting of 3,000 weights costing more than the risk itself.
      */
     private static String riskKey(RiskQuery q) {
-        StringBuilder sb = new StringBuilder(32 * (q.weights().size() + 1));
+        StringBuilder sb = new StringBuilder(40 * (q.weights().size() + (q.benchmark() == null ? 0 : q.benchmark().size()) + 1));
         sb.append("risk|").append(scaleKey(q.scale())).append('|').append(q.missing()).append("|weights");
         weightsKey(sb, q.weights());
         if (q.benchmark() != null) weightsKey(sb.append("|benchmark"), q.benchmark());
@@ -176,9 +179,13 @@ public final class QueryRoutes implements RouteModule {
 
     private static void weightsKey(StringBuilder sb, Map<String, Double> w) {
         for (Map.Entry<String, Double> e : w.entrySet()) {
-            sb.append(',').append(e.getKey()).append('=').append(Long.toHexString(Double.doubleToLongBits(e.getValue())));
+            sb.append(',').append(e.getKey()).append('=');
+            long bits = Double.doubleToLongBits(e.getValue());
+            for (int shift = 60; shift >= 0; shift -= 4) sb.append(HEX[(int) (bits >>> shift) & 0xF]);
         }
     }
+
+    private static final char[] HEX = "0123456789abcdef".toCharArray();
 
     private static String scaleKey(eigencov.service.Scale s) {
         return s.name() + ":" + s.days();
@@ -190,9 +197,15 @@ public final class QueryRoutes implements RouteModule {
         return m;
     }
 
-    private static <T> T body(Context ctx, ObjectReader reader) throws IOException {
+    /**
+     * Parses the body straight from the request stream: reading it into an array first (Javalin's
+     * bodyAsBytes: a growing buffer, then a copy) cost more than the parse for a 3,000-weight
+     * portfolio. The size limit is counted on the stream, as for uploads.
+     */
+    private <T> T body(Context ctx, ObjectReader reader) throws IOException {
+        if (ctx.req().getContentLengthLong() > maxBodyBytes) throw LimitedBody.tooLarge(maxBodyBytes);
         // a JsonProcessingException goes to HttpApi's mapper: 400 naming the JSON path
-        T value = reader.readValue(ctx.bodyAsBytes());
+        T value = reader.readValue(new LimitedBody(ctx.bodyInputStream(), maxBodyBytes));
         if (value == null) throw ApiException.badField("body", "a JSON object is required");
         return value;
     }

@@ -9,17 +9,20 @@ import java.util.Locale;
  * quality wins; ties go to the endpoint's order of preference). No header means JSON.
  */
 enum Representation {
-    JSON("application/json", "application/json"),
-    CSV("text/csv", "text/csv; charset=utf-8; header=present"),
-    /** NumPy {@code .npy} version 1.0, see {@link Npy}. */
-    NPY("application/x-npy", "application/x-npy");
+    JSON("application/json", "application/json", false),
+    CSV("text/csv", "text/csv; charset=utf-8; header=present", false),
+    /** NumPy {@code .npy} version 1.0, see {@link Npy}: bytes, so its Content-Type has no charset. */
+    NPY(Npy.MEDIA_TYPE, Npy.MEDIA_TYPE, true);
 
     final String mediaType;
     final String contentType;
+    /** The body is bytes, not text: no character encoding belongs in its Content-Type. */
+    final boolean binary;
 
-    Representation(String mediaType, String contentType) {
+    Representation(String mediaType, String contentType, boolean binary) {
         this.mediaType = mediaType;
         this.contentType = contentType;
+        this.binary = binary;
     }
 
     /**

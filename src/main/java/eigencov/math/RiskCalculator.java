@@ -16,7 +16,7 @@ public final class RiskCalculator {
 
     /**
      * Covariance submatrix {@code C[S,S] = B_S F B_S' + D_S} times {@code scale}, for model rows idx
-     * (|S| x |S| row-major, symmetric). With {@code correlation} returns
+     * (|S| x |S| row-major, exactly symmetric: one triangle is computed and mirrored). With {@code correlation} returns
      * {@code C_ab / sqrt(C_aa C_bb)} instead (scale cancels); a name with zero variance gets
      * correlation 0 with the others and 1 with itself.
      */
@@ -91,19 +91,24 @@ public final class RiskCalculator {
             }
             out[a * n + a] += d[idx[a]] * scale;
         }
-        mirrorLowerTriangle(out, n);
         if (correlation) {
+            // scale the lower triangle only; the mirror below copies it, so that C_ab and C_ba are the
+            // same bits (scaling both would round (x inv_a) inv_b and (x inv_b) inv_a differently)
             double[] inv = new double[n];
             for (int a = 0; a < n; a++) {
                 double v = out[a * n + a];
                 inv[a] = v > 0 ? 1.0 / Math.sqrt(v) : 0;
             }
             for (int a = 0; a < n; a++) {
-                for (int c = 0; c < n; c++) {
-                    out[a * n + c] = a == c ? 1.0 : out[a * n + c] * inv[a] * inv[c];
+                int row = a * n;
+                double ia = inv[a];
+                for (int c = 0; c < a; c++) {
+                    out[row + c] = out[row + c] * ia * inv[c];
                 }
+                out[row + a] = 1.0;
             }
         }
+        mirrorLowerTriangle(out, n);
         return out;
     }
 

@@ -33,7 +33,7 @@ public final class QueryService {
         double scale = q.scale().varianceMultiplier();
         if (q.form() == CovarianceForm.MATRIX) {
             double[] c = RiskCalculator.covariance(served.result().model(), sel.rows(), scale, q.correlation());
-            return new CovarianceMatrix(served.ref(), sel.kept(), sel.omitted(), q.scale(), q.correlation(), c);
+            return CovarianceMatrix.ofComputed(served.ref(), sel.kept(), sel.omitted(), q.scale(), q.correlation(), c);
         }
         return factorForm(served, sel, q.scale());
     }

@@ -27,12 +27,12 @@ public record RiskQuery(Map<String, Double> weights, Map<String, Double> benchma
         if (w.isEmpty()) throw InvalidInputException.field(field, "must hold at least one ticker");
         List<InvalidInputException.Issue> issues = new ArrayList<>();
         for (Map.Entry<String, Double> e : w.entrySet()) {
-            String at = field + "." + e.getKey();
             String problem = Tickers.syntaxProblem(e.getKey());
             if (problem != null) {
                 issues.add(new InvalidInputException.Issue(null, field, problem));
             } else if (e.getValue() == null || !Double.isFinite(e.getValue())) {
-                issues.add(new InvalidInputException.Issue(null, at, "weight of '" + e.getKey() + "' must be a finite number, was " + e.getValue()));
+                issues.add(new InvalidInputException.Issue(null, field + "." + e.getKey(),
+                        "weight of '" + e.getKey() + "' must be a finite number, was " + e.getValue()));
             }
         }
         if (!issues.isEmpty()) {

@@ -25,6 +25,13 @@ class AppConfigTest {
     }
 
     @Test
+    void slow_request_threshold_comes_from_flag_or_environment() {
+        assertEquals(AppConfig.DEFAULT_SLOW_REQUEST_MS, AppConfig.fromArgs(List.of(), Map.of()).slowRequestMs());
+        assertEquals(250, AppConfig.fromArgs(List.of(), Map.of("EIGENCOV_SLOW_REQUEST_MS", "250")).slowRequestMs());
+        assertEquals(40, AppConfig.fromArgs(List.of("--slow-request-ms", "40"), Map.of("EIGENCOV_SLOW_REQUEST_MS", "250")).slowRequestMs());
+    }
+
+    @Test
     void without_keys_binds_loopback_and_with_keys_all_interfaces() {
         assertEquals("127.0.0.1", AppConfig.defaults().bindHost());
         assertEquals("0.0.0.0", AppConfig.defaults().withApiKeys("read:abc").bindHost());
@@ -48,6 +55,7 @@ class AppConfigTest {
             "--db|mysql://x|db URL must start with jdbc:",
             "--max-abs-return|-1|maxAbsReturn must be a positive finite number",
             "--db-pool-size|0|dbPoolSize must be between 1 and 200",
+            "--slow-request-ms|0|slowRequestMs must be at least 1",
             "--colour|red|unknown flag --colour"})
     void rejects_bad_settings_naming_the_key(String flag, String value, String expected) {
         var e = assertThrows(AppConfig.ConfigException.class, () -> AppConfig.fromArgs(List.of(flag, value), Map.of()));

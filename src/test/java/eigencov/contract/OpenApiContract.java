@@ -135,6 +135,9 @@ final class OpenApiContract {
             out.add(where + ": media type '" + media + "' not declared (declared: " + names(content) + ")");
             return out;
         }
+        if (isBinary(media) && contentType.toLowerCase(Locale.ROOT).contains("charset")) {
+            out.add(where + ": binary media type '" + media + "' with a charset parameter ('" + contentType + "')");
+        }
         if (isJson(media)) {
             String pointer = responsePointer + "/content/" + escape(media) + "/schema";
             out.addAll(validate(where, pointer, body));
@@ -165,6 +168,11 @@ final class OpenApiContract {
             }
         }
         return out;
+    }
+
+    /** Media types whose bodies are bytes, not text: a charset parameter on them is meaningless. */
+    private static boolean isBinary(String media) {
+        return media.equals("application/x-npy") || media.equals("application/octet-stream");
     }
 
     /** Checks a request body that the server accepted (2xx) against the operation's requestBody schema. */

@@ -70,6 +70,7 @@ class FactorEndpointsTest {
     void exposures_as_npy_put_the_specific_variance_in_the_last_column() {
         Response r = given().accept("application/x-npy").queryParam("tickers", String.join(",", NAMES)).get("/v1/models/synth/exposures");
         r.then().statusCode(200).header("X-Tickers", String.join(",", NAMES)).header("X-Columns", "f1,f2,f3,specificVariance");
+        assertEquals("application/x-npy", r.header("Content-Type"));
         assertExposureRows(NpyReader.read(r.asByteArray()), true);
     }
 
@@ -143,6 +144,7 @@ class FactorEndpointsTest {
 
         Response npy = given().accept("application/x-npy").queryParam("from", from.toString()).queryParam("to", to.toString()).get(path);
         npy.then().statusCode(200).header("X-Dates", String.join(",", dates));
+        assertEquals("application/x-npy", npy.header("Content-Type"));
         QueryFixture.assertMatrix(expected, NpyReader.read(npy.asByteArray()), 0.0);
     }
 

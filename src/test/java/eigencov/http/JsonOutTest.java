@@ -27,8 +27,9 @@ class JsonOutTest {
 
     @Test
     void writes_the_same_bytes_as_jackson_for_nested_objects_strings_and_numbers() throws IOException {
+        // long strings too: beyond the run quoted() reserves room for, and beyond the whole buffer
         List<String> strings = List.of("", "S0001", "A.b_c:d/e-f", ASCII, "caf\u00e9 \"q\" \\ \n", "\u4e2d\u6587\u0001x",
-                "\ud83d\ude00 end\t");
+                "\ud83d\ude00 end\t", "x".repeat(300) + "\u00e9", "y".repeat(20_000) + "\n" + "z".repeat(300));
         double[] doubles = {0.0, -0.0, 1e-4, -2.5e-7, 123456.789, 1e7, Double.NaN, Double.POSITIVE_INFINITY,
                 Double.NEGATIVE_INFINITY, Double.MIN_VALUE};
         assertSameBytes(g -> {
@@ -38,7 +39,9 @@ class JsonOutTest {
             g.strings("strings", strings);
             g.numbers("doubles", doubles);
             g.startArray("objects");
-            for (int i = 0; i < 3; i++) g.startObject().string("ticker", "T" + i).number("w", i / 7.0).endObject();
+            JsonOut.Name ticker = new JsonOut.Name("ticker");
+            JsonOut.Name w = new JsonOut.Name("w\u00e9\"");
+            for (int i = 0; i < 3; i++) g.startObject().string(ticker, "T" + i).number(w, i / 7.0).endObject();
             g.endArray();
             g.rows("matrix", new double[] {1, 2, 3, 4, 5, 6}, 2, 3);
             g.endObject();
@@ -64,7 +67,7 @@ class JsonOutTest {
             for (int i = 0; i < 3; i++) {
                 j.writeStartObject();
                 j.writeStringField("ticker", "T" + i);
-                j.writeNumberField("w", i / 7.0);
+                j.writeNumberField("w\u00e9\"", i / 7.0);
                 j.writeEndObject();
             }
             j.writeEndArray();
@@ -89,7 +92,8 @@ class JsonOutTest {
     @Test
     void writes_a_symmetric_matrix_as_jackson_does_even_where_mirrors_differ() throws IOException {
         SplittableRandom rnd = new SplittableRandom(11L);
-        for (int n : new int[] {0, 1, 2, 37}) {
+        // sizes up and down: the triangle text is reused between calls, stale contents must not show
+        for (int n : new int[] {0, 1, 2, 37, 5, 60, 3}) {
             double[] m = new double[n * n];
             for (int r = 0; r < n; r++) {
                 for (int c = 0; c <= r; c++) {

@@ -49,14 +49,37 @@ class ShortestDoubleTest {
     }
 
     @Test
+    void matches_jacksons_fast_writer_for_every_digit_count_in_every_layout() {
+        // 1 to 17 significant digits, whole and fractional, plain and exponent layouts: the digits
+        // are written eight at a time, so each count exercises a different split of the blocks
+        String digits = "12345678901234567";
+        for (int len = 1; len <= 17; len++) {
+            for (int exp = -12; exp <= 25; exp++) {
+                double v = Double.parseDouble(digits.substring(0, len) + "e" + (exp - len));
+                assertSame(v);
+                assertSame(Math.nextUp(v));
+                assertSame(Math.nextDown(v));
+            }
+            long whole = Long.parseLong("98765432109876543".substring(0, Math.min(len, 16)));
+            assertSame((double) whole);
+            assertSame((double) (whole * 10));
+        }
+        for (int v : new int[] {0, 1, 9, 10, 99, 100, 1234, 9999, 10_000, 12_345_678, 99_999_999, 10_000_001}) {
+            String expected = String.format("%08d", v);
+            assertEquals(expected, new String(java.nio.ByteBuffer.allocate(8).order(java.nio.ByteOrder.LITTLE_ENDIAN)
+                    .putLong(ShortestDouble.eightDigits(v)).array(), StandardCharsets.US_ASCII));
+        }
+    }
+
+    @Test
     void rejects_non_finite_values() {
-        byte[] buf = new byte[ShortestDouble.MAX_CHARS];
+        byte[] buf = new byte[ShortestDouble.ROOM];
         assertThrows(IllegalArgumentException.class, () -> ShortestDouble.write(Double.NaN, buf, 0));
         assertThrows(IllegalArgumentException.class, () -> ShortestDouble.write(Double.NEGATIVE_INFINITY, buf, 0));
     }
 
     private static void assertSame(double v) {
-        byte[] buf = new byte[ShortestDouble.MAX_CHARS + 3];
+        byte[] buf = new byte[ShortestDouble.ROOM + 3];
         int end = ShortestDouble.write(v, buf, 3);
         String expected = NumberOutput.toString(v, true);
         String got = new String(buf, 3, end - 3, StandardCharsets.US_ASCII);

@@ -45,6 +45,16 @@ class RiskCalculatorTest {
         return new FactorModel(Fixtures.names(n), k, b, f, d);
     }
 
+    /** The same exposures and specific variances with F reduced to its diagonal (the PCA fits' case). */
+    static FactorModel withDiagonalFactorCovariance(FactorModel m) {
+        int k = m.factors();
+        double[] f = new double[k * k];
+        for (int i = 0; i < k; i++) {
+            f[i * k + i] = m.factorCov(i, i);
+        }
+        return new FactorModel(m.tickers(), k, m.exposures(), f, m.specificVariances());
+    }
+
     /** Naive C = B F B' + D, element by element. */
     static double naive(FactorModel m, int i, int j) {
         int k = m.factors();
@@ -95,6 +105,35 @@ class RiskCalculatorTest {
                 assertEquals(e * 252, c[a * idx.length + b], IDENTITY * max);
                 double ec = e / Math.sqrt(naive(m, idx[a], idx[a]) * naive(m, idx[b], idx[b]));
                 assertEquals(ec, corr[a * idx.length + b], IDENTITY);
+            }
+        }
+    }
+
+    @Test
+    void correlation_and_covariance_matrices_are_exactly_symmetric_bit_for_bit() {
+        // full F (L != R in the kernel) and diagonal F; correlation scales each entry by two
+        // factors whose product rounds differently in the two orders unless one triangle is mirrored
+        FactorModel full = randomModel(300, 9, 11);
+        FactorModel diagonal = withDiagonalFactorCovariance(full);
+        int n = 120;
+        int[] idx = new int[n];
+        for (int a = 0; a < n; a++) {
+            idx[a] = (a * 53 + 17) % 300;
+        }
+        for (FactorModel m : new FactorModel[] {full, diagonal}) {
+            for (boolean correlation : new boolean[] {false, true}) {
+                double[] c = RiskCalculator.covariance(m, idx, 252, correlation);
+                int asymmetric = 0;
+                for (int a = 0; a < n; a++) {
+                    for (int b = 0; b < a; b++) {
+                        if (Double.doubleToRawLongBits(c[a * n + b]) != Double.doubleToRawLongBits(c[b * n + a])) asymmetric++;
+                    }
+                }
+                assertEquals(0, asymmetric, (m == full ? "full" : "diagonal") + " F, correlation=" + correlation
+                        + ": off-diagonal pairs that differ");
+                if (correlation) {
+                    for (int a = 0; a < n; a++) assertEquals(1.0, c[a * n + a], 0.0);
+                }
             }
         }
     }
