@@ -53,43 +53,23 @@ public final class RiskCalculator {
             }
         }
         double[] out = new double[n * n];
+        // Row a of the lower triangle as k scaled rows of R' added in factor order (axpy form, vector
+        // FMAs when the vector kernels are on): entry (a, c) is still the sum over the factors in index
+        // order, whatever the other tickers of the request. R' is k x n, so each axpy reads a contiguous row.
+        double[] rt = new double[k * n];
+        for (int a = 0; a < n; a++) {
+            int o = a * k;
+            for (int c = 0; c < k; c++) {
+                rt[c * n + a] = r[o + c];
+            }
+        }
         for (int a = 0; a < n; a++) {
             int lo = a * k;
-            int c = 0;
-            // Four entries at a time: four independent sums keep the FPU busy where one sum waits
-            // on each addition. Each sum still adds its k terms in index order, so the result is
-            // bit for bit that of one entry at a time.
-            for (; c + 3 <= a; c += 4) {
-                int r0 = c * k;
-                int r1 = r0 + k;
-                int r2 = r1 + k;
-                int r3 = r2 + k;
-                double s0 = 0;
-                double s1 = 0;
-                double s2 = 0;
-                double s3 = 0;
-                for (int e = 0; e < k; e++) {
-                    double x = l[lo + e];
-                    s0 += x * r[r0 + e];
-                    s1 += x * r[r1 + e];
-                    s2 += x * r[r2 + e];
-                    s3 += x * r[r3 + e];
-                }
-                int o = a * n + c;
-                out[o] = s0 * scale;
-                out[o + 1] = s1 * scale;
-                out[o + 2] = s2 * scale;
-                out[o + 3] = s3 * scale;
+            int row = a * n;
+            for (int e = 0; e < k; e++) {
+                Dense.axpy(l[lo + e] * scale, rt, e * n, out, row, a + 1);
             }
-            for (; c <= a; c++) {
-                double s = 0;
-                int ro = c * k;
-                for (int e = 0; e < k; e++) {
-                    s += l[lo + e] * r[ro + e];
-                }
-                out[a * n + c] = s * scale;
-            }
-            out[a * n + a] += d[idx[a]] * scale;
+            out[row + a] += d[idx[a]] * scale;
         }
         if (correlation) {
             // scale the lower triangle only; the mirror below copies it, so that C_ab and C_ba are the
