@@ -193,24 +193,8 @@ final class QueryResponses {
             if (r.trackingError() != null) g.number("trackingError", r.trackingError());
             g.number("betaToFirstFactor", r.betaToFirstFactor());
             byFactor(g, r.factorExposures(), r.factorContributions());
-            double[] w = a.weights();
-            double[] mcr = r.marginal();
-            double[] ccr = r.contribution();
-            double[] spec = r.specificContributions();
-            double[] beta = r.assetBetasToFirstFactor();
-            g.number("specificContribution", sum(spec));
-            g.startArray("byAsset");
-            for (int i = 0; i < n; i++) {
-                g.startObject();
-                g.string(TICKER, a.tickers().get(i));
-                g.number(WEIGHT, w[i]);
-                g.number(MARGINAL, mcr[i]);
-                g.number(CONTRIBUTION, ccr[i]);
-                g.number(SPECIFIC_CONTRIBUTION, spec[i]);
-                g.number(BETA_TO_FIRST_FACTOR, beta[i]);
-                g.endObject();
-            }
-            g.endArray();
+            byAsset(g, a.tickers(), WEIGHT, a.weights(), r.marginal(), r.contribution(), r.specificContributions(),
+                    r.assetBetasToFirstFactor());
             if (r.active() != null) active(g, r.active(), a.activeTickers());
             g.strings("omitted", a.omitted());
         });
@@ -222,23 +206,31 @@ final class QueryResponses {
         g.number("trackingError", act.trackingError());
         g.number("variance", act.variance());
         byFactor(g, act.factorExposures(), act.factorContributions());
-        double[] aw = act.activeWeights();
-        double[] mcr = act.marginal();
-        double[] ccr = act.contribution();
-        double[] spec = act.specificContributions();
-        g.number("specificContribution", sum(spec));
+        byAsset(g, tickers, ACTIVE_WEIGHT, act.activeWeights(), act.marginal(), act.contribution(),
+                act.specificContributions(), null);
+        g.endObject();
+    }
+
+    /**
+     * The specific contribution's total and the per-asset rows of a risk answer; {@code beta} (to the
+     * first factor) is written when given (the portfolio's rows, not the active ones).
+     */
+    private static void byAsset(JsonOut g, List<String> tickers, JsonOut.Name weightName, double[] weights,
+                                double[] marginal, double[] contribution, double[] specific, double[] beta)
+            throws IOException {
+        g.number("specificContribution", sum(specific));
         g.startArray("byAsset");
-        for (int i = 0; i < aw.length; i++) {
+        for (int i = 0; i < weights.length; i++) {
             g.startObject();
             g.string(TICKER, tickers.get(i));
-            g.number(ACTIVE_WEIGHT, aw[i]);
-            g.number(MARGINAL, mcr[i]);
-            g.number(CONTRIBUTION, ccr[i]);
-            g.number(SPECIFIC_CONTRIBUTION, spec[i]);
+            g.number(weightName, weights[i]);
+            g.number(MARGINAL, marginal[i]);
+            g.number(CONTRIBUTION, contribution[i]);
+            g.number(SPECIFIC_CONTRIBUTION, specific[i]);
+            if (beta != null) g.number(BETA_TO_FIRST_FACTOR, beta[i]);
             g.endObject();
         }
         g.endArray();
-        g.endObject();
     }
 
     /** "byFactor": [{factor (1-based), exposure, contribution}]. */

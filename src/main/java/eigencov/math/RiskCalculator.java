@@ -29,8 +29,11 @@ public final class RiskCalculator {
         double[] f = m.factorCovarianceView();
         double[] d = m.specificView();
         // L = B_S F (|S| x k), R = B_S; C = L R' (+ D). With diagonal F use B_S sqrt(F) on both sides.
+        // R is kept transposed (k x |S|): row a of the lower triangle is then k contiguous axpys of its
+        // rows added in factor order (vector FMAs when the vector kernels are on), so entry (a, c) is
+        // the sum over the factors in index order, whatever the other tickers of the request.
         double[] l = new double[n * k];
-        double[] r = new double[n * k];
+        double[] rt = new double[k * n];
         boolean diagonal = m.diagonalFactorCovariance();
         for (int a = 0; a < n; a++) {
             int bo = idx[a] * k;
@@ -39,7 +42,7 @@ public final class RiskCalculator {
                 for (int c = 0; c < k; c++) {
                     double g = b[bo + c] * Math.sqrt(f[c * k + c]);
                     l[o + c] = g;
-                    r[o + c] = g;
+                    rt[c * n + a] = g;
                 }
             } else {
                 for (int c = 0; c < k; c++) {
@@ -48,21 +51,11 @@ public final class RiskCalculator {
                         s += b[bo + e] * f[e * k + c];
                     }
                     l[o + c] = s;
-                    r[o + c] = b[bo + c];
+                    rt[c * n + a] = b[bo + c];
                 }
             }
         }
         double[] out = new double[n * n];
-        // Row a of the lower triangle as k scaled rows of R' added in factor order (axpy form, vector
-        // FMAs when the vector kernels are on): entry (a, c) is still the sum over the factors in index
-        // order, whatever the other tickers of the request. R' is k x n, so each axpy reads a contiguous row.
-        double[] rt = new double[k * n];
-        for (int a = 0; a < n; a++) {
-            int o = a * k;
-            for (int c = 0; c < k; c++) {
-                rt[c * n + a] = r[o + c];
-            }
-        }
         for (int a = 0; a < n; a++) {
             int lo = a * k;
             int row = a * n;
