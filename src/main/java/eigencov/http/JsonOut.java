@@ -119,25 +119,159 @@ final class JsonOut implements AutoCloseable {
      */
     static final class Name {
         final byte[] bytes;
+        /** {@link #bytes} zero-padded to a multiple of eight, for {@link #copyPadded}. */
+        final byte[] padded;
 
         Name(String field) {
+            this(encode(field, true), field);
+        }
+
+        private Name(byte[] bytes, String field) {
+            this.bytes = bytes;
+            this.padded = Arrays.copyOf(bytes, (bytes.length + 7) & ~7);
+        }
+
+        /** Raw bytes: constant JSON text between values (e.g. {@code ,"weight":}). */
+        static Name raw(byte[] text) {
+            return new Name(text, null);
+        }
+
+        /** {@code "field":} as {@link JsonOut#name(String)} writes it (or just {@code "field"} without the colon). */
+        static byte[] encode(String field, boolean colon) {
             try {
                 java.io.ByteArrayOutputStream b = new java.io.ByteArrayOutputStream();
                 try (JsonOut g = new JsonOut(b)) {
-                    g.name(field);
+                    if (colon) g.name(field);
+                    else g.string(field);
                 }
-                bytes = b.toByteArray();
+                return b.toByteArray();
             } catch (IOException e) {
                 throw new java.io.UncheckedIOException(e);
             }
         }
     }
 
+    /**
+     * Copies {@code len} bytes of {@code padded} (zero-padded to a multiple of eight) to
+     * {@code dst[at..]} eight at a time, writing up to seven bytes of padding past the end (the next
+     * write overwrites them), and returns the position after the copy. Constant texts are short:
+     * two or three 8-byte moves beat a call to System.arraycopy or a byte loop.
+     */
+    private static int copyPadded(byte[] padded, int len, byte[] dst, int at) {
+        for (int i = 0; i < len; i += 8) LONG_LE.set(dst, at + i, (long) LONG_LE.get(padded, i));
+        return at + len;
+    }
+
+    /**
+     * The layout of an object written once per row of a table: one string field, then number fields,
+     * e.g. {@code {"ticker":"AAA","weight":0.25,"marginal":0.011}}. The constant text between the
+     * values (braces, names, quotes and commas) is encoded once, so a row is a few block copies, its
+     * label and its numbers.
+     */
+    static final class RowShape {
+        private final Name labelName;
+        private final Name[] numberNames;
+        /** {@code {"label":"} */
+        private final Name head;
+        /** {@code ","first":}, then {@code ,"next":} for each further number field. */
+        private final Name[] between;
+        private final int fixedBytes;
+
+        RowShape(String labelField, String... numberFields) {
+            if (numberFields.length == 0) throw new IllegalArgumentException("a row shape needs at least one number field");
+            labelName = new Name(labelField);
+            numberNames = new Name[numberFields.length];
+            between = new Name[numberFields.length];
+            int fixed = 0;
+            byte[] h = concat(new byte[] {'{'}, labelName.bytes, new byte[] {'"'});
+            head = Name.raw(h);
+            fixed += h.length + 8;
+            for (int j = 0; j < numberFields.length; j++) {
+                numberNames[j] = new Name(numberFields[j]);
+                byte[] b = concat(j == 0 ? new byte[] {'"', ','} : new byte[] {','}, numberNames[j].bytes, new byte[0]);
+                between[j] = Name.raw(b);
+                fixed += b.length + 8 + ShortestDouble.ROOM;
+            }
+            fixedBytes = fixed + 2; // the comma before the row and the closing brace
+        }
+
+        int numbers() {
+            return numberNames.length;
+        }
+
+        private static byte[] concat(byte[] a, byte[] b, byte[] c) {
+            byte[] r = Arrays.copyOf(a, a.length + b.length + c.length);
+            System.arraycopy(b, 0, r, a.length, b.length);
+            System.arraycopy(c, 0, r, a.length + b.length, c.length);
+            return r;
+        }
+    }
+
+    /** Longest label {@link #shapedRows} writes without checks per byte of room. */
+    private static final int FAST_LABEL_CHARS = 64;
+
+    /**
+     * {@code "field": [row 0, row 1, ...]} where row i is an object of {@code shape}: its label
+     * {@code labels.get(i)} and the number {@code columns[j][i]} for each number field j. The same
+     * bytes as writing each row with {@link #startObject()}, {@link #string(Name, String)} and
+     * {@link #number(Name, double)}, which rows with a long label, a label needing escapes or a
+     * non-finite number still use.
+     */
+    JsonOut shapedRows(String field, RowShape shape, List<String> labels, double[]... columns) throws IOException {
+        int m = shape.numbers();
+        if (columns.length != m) throw new IllegalArgumentException(columns.length + " columns for a row of " + m + " numbers");
+        int n = labels.size();
+        for (double[] c : columns) {
+            if (c.length < n) throw new IllegalArgumentException("a column of " + c.length + " numbers for " + n + " rows");
+        }
+        startArray(field);
+        for (int i = 0; i < n; i++) {
+            String label = labels.get(i);
+            if (!shapedRow(shape, label, columns, i)) {
+                startObject();
+                string(shape.labelName, label);
+                for (int j = 0; j < m; j++) number(shape.numberNames[j], columns[j][i]);
+                endObject();
+            }
+        }
+        return endArray();
+    }
+
+    /** Row i by block copies; false (nothing written) when the row needs the general path. */
+    private boolean shapedRow(RowShape shape, String label, double[][] columns, int i) throws IOException {
+        int len = label.length();
+        if (len > FAST_LABEL_CHARS) return false;
+        for (double[] c : columns) {
+            if (!Double.isFinite(c[i])) return false;
+        }
+        room(shape.fixedBytes + len);
+        int start = pos;
+        int p = pos;
+        if (comma[depth]) buf[p++] = ',';
+        p = copyPadded(shape.head.padded, shape.head.bytes.length, buf, p);
+        for (int c = 0; c < len; c++) {
+            char ch = label.charAt(c);
+            if (ch >= 0x80 || ESCAPES[ch] != 0) {
+                pos = start;
+                return false;
+            }
+            buf[p++] = (byte) ch;
+        }
+        for (int j = 0; j < columns.length; j++) {
+            Name b = shape.between[j];
+            p = copyPadded(b.padded, b.bytes.length, buf, p);
+            p = ShortestDouble.write(columns[j][i], buf, p);
+        }
+        buf[p++] = '}';
+        pos = p;
+        comma[depth] = true;
+        return true;
+    }
+
     JsonOut name(Name field) throws IOException {
         separator();
-        byte[] b = field.bytes;
-        room(b.length);
-        for (byte x : b) buf[pos++] = x;
+        room(field.bytes.length + 8);
+        pos = copyPadded(field.padded, field.bytes.length, buf, pos);
         afterName = true;
         return this;
     }

@@ -34,18 +34,17 @@ import java.util.List;
  * in {@code X-Omitted} for CSV and {@code .npy}, and in {@code "omitted"} for JSON.
  */
 final class QueryResponses {
-    private static final JsonOut.Name TICKER = new JsonOut.Name("ticker");
-    private static final JsonOut.Name WEIGHT = new JsonOut.Name("weight");
-    private static final JsonOut.Name ACTIVE_WEIGHT = new JsonOut.Name("activeWeight");
-    private static final JsonOut.Name MARGINAL = new JsonOut.Name("marginal");
-    private static final JsonOut.Name CONTRIBUTION = new JsonOut.Name("contribution");
-    private static final JsonOut.Name SPECIFIC_CONTRIBUTION = new JsonOut.Name("specificContribution");
-    private static final JsonOut.Name BETA_TO_FIRST_FACTOR = new JsonOut.Name("betaToFirstFactor");
+    /** A portfolio's per-asset rows (beta to the first factor included). */
+    private static final JsonOut.RowShape ASSET_ROW = new JsonOut.RowShape("ticker",
+            "weight", "marginal", "contribution", "specificContribution", "betaToFirstFactor");
+    /** Per-asset rows of the active (tracking error) decomposition. */
+    private static final JsonOut.RowShape ACTIVE_ROW = new JsonOut.RowShape("ticker",
+            "activeWeight", "marginal", "contribution", "specificContribution");
 
     /** Rough JSON size of one double (digits, exponent, separator), for the compression decision. */
     private static final int BYTES_PER_NUMBER = 22;
 
-    void covarianceMatrix(Context ctx, Representation rep, CovarianceMatrix a, String key) {
+    void covarianceMatrix(Context ctx, Representation rep, CovarianceMatrix a, byte[] key) {
         int n = a.tickers().size();
         DoubleBuffer m = a.matrixView();
         long size = (long) n * n * BYTES_PER_NUMBER;
@@ -79,7 +78,7 @@ final class QueryResponses {
         }
     }
 
-    void factorForm(Context ctx, FactorForm a, String key) {
+    void factorForm(Context ctx, FactorForm a, byte[] key) {
         int n = a.tickers().size();
         int k = a.factors();
         json(ctx, a.fit(), key, (long) n * (k + 1) * BYTES_PER_NUMBER, g -> {
@@ -99,7 +98,7 @@ final class QueryResponses {
      * {@code ticker,f1..fk,specificVariance}; {@code .npy} an n x (k+1) matrix whose last column is
      * the specific variance (columns named in {@code X-Columns}).
      */
-    void exposures(Context ctx, Representation rep, FactorForm a, String key) {
+    void exposures(Context ctx, Representation rep, FactorForm a, byte[] key) {
         int n = a.tickers().size();
         int k = a.factors();
         long size = (long) n * (k + 1) * BYTES_PER_NUMBER;
@@ -142,7 +141,7 @@ final class QueryResponses {
         }
     }
 
-    void factors(Context ctx, FactorSpectrum a, String key) {
+    void factors(Context ctx, FactorSpectrum a, byte[] key) {
         int k = a.factors();
         json(ctx, a.fit(), key, (long) (k * k + 2 * a.eigenvalues().length) * BYTES_PER_NUMBER, g -> {
             g.number("factors", k);
@@ -154,7 +153,7 @@ final class QueryResponses {
     }
 
     /** Factor returns: JSON {@code dates} and {@code factorReturns} (dates x k); CSV {@code date,f1..fk}; {@code .npy} dates x k with {@code X-Dates}. */
-    void factorReturns(Context ctx, Representation rep, FactorReturnSeries a, String key) {
+    void factorReturns(Context ctx, Representation rep, FactorReturnSeries a, byte[] key) {
         int t = a.dates().size();
         int k = a.factors();
         double[] v = a.values();
@@ -181,7 +180,7 @@ final class QueryResponses {
         }
     }
 
-    void risk(Context ctx, RiskAnswer a, String key) {
+    void risk(Context ctx, RiskAnswer a, byte[] key) {
         PortfolioRisk r = a.risk();
         int n = a.tickers().size();
         json(ctx, a.fit(), key, (long) n * 6 * BYTES_PER_NUMBER, g -> {
@@ -193,7 +192,9 @@ final class QueryResponses {
             if (r.trackingError() != null) g.number("trackingError", r.trackingError());
             g.number("betaToFirstFactor", r.betaToFirstFactor());
             byFactor(g, r.factorExposures(), r.factorContributions());
-            byAsset(g, a.tickers(), WEIGHT, a.weights(), r.marginal(), r.contribution(), r.specificContributions(),
+            double[] specific = r.specificContributions();
+            g.number("specificContribution", sum(specific));
+            g.shapedRows("byAsset", ASSET_ROW, a.tickers(), a.weights(), r.marginal(), r.contribution(), specific,
                     r.assetBetasToFirstFactor());
             if (r.active() != null) active(g, r.active(), a.activeTickers());
             g.strings("omitted", a.omitted());
@@ -206,31 +207,10 @@ final class QueryResponses {
         g.number("trackingError", act.trackingError());
         g.number("variance", act.variance());
         byFactor(g, act.factorExposures(), act.factorContributions());
-        byAsset(g, tickers, ACTIVE_WEIGHT, act.activeWeights(), act.marginal(), act.contribution(),
-                act.specificContributions(), null);
-        g.endObject();
-    }
-
-    /**
-     * The specific contribution's total and the per-asset rows of a risk answer; {@code beta} (to the
-     * first factor) is written when given (the portfolio's rows, not the active ones).
-     */
-    private static void byAsset(JsonOut g, List<String> tickers, JsonOut.Name weightName, double[] weights,
-                                double[] marginal, double[] contribution, double[] specific, double[] beta)
-            throws IOException {
+        double[] specific = act.specificContributions();
         g.number("specificContribution", sum(specific));
-        g.startArray("byAsset");
-        for (int i = 0; i < weights.length; i++) {
-            g.startObject();
-            g.string(TICKER, tickers.get(i));
-            g.number(weightName, weights[i]);
-            g.number(MARGINAL, marginal[i]);
-            g.number(CONTRIBUTION, contribution[i]);
-            g.number(SPECIFIC_CONTRIBUTION, specific[i]);
-            if (beta != null) g.number(BETA_TO_FIRST_FACTOR, beta[i]);
-            g.endObject();
-        }
-        g.endArray();
+        g.shapedRows("byAsset", ACTIVE_ROW, tickers, act.activeWeights(), act.marginal(), act.contribution(), specific);
+        g.endObject();
     }
 
     /** "byFactor": [{factor (1-based), exposure, contribution}]. */
@@ -259,7 +239,7 @@ final class QueryResponses {
     }
 
     /** An object holding "fit", "caution", then {@code fields}. */
-    private static void json(Context ctx, FitRef fit, String key, long approxBytes, JsonFields fields) {
+    private static void json(Context ctx, FitRef fit, byte[] key, long approxBytes, JsonFields fields) {
         ResponseSender.send(ctx, fit, Representation.JSON, key, approxBytes, true, out -> {
             try (JsonOut g = new JsonOut(out, approxBytes > ResponseSender.WHOLE_BODY_BYTES ? JsonOut.LARGE_BUFFER_BYTES : JsonOut.BUFFER_BYTES)) {
                 g.startObject();
@@ -289,7 +269,7 @@ final class QueryResponses {
         void write(Writer w) throws IOException;
     }
 
-    private static void csv(Context ctx, FitRef fit, String key, long approxBytes, CsvBody body) {
+    private static void csv(Context ctx, FitRef fit, byte[] key, long approxBytes, CsvBody body) {
         ResponseSender.send(ctx, fit, Representation.CSV, key, approxBytes, true, out -> {
             try (Writer w = new BufferedWriter(new OutputStreamWriter(out, StandardCharsets.UTF_8), 64 * 1024)) {
                 body.write(w);

@@ -4,6 +4,7 @@ import com.fasterxml.jackson.core.JsonParser;
 import com.fasterxml.jackson.databind.DeserializationFeature;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.ObjectReader;
+import com.fasterxml.jackson.databind.annotation.JsonDeserialize;
 import eigencov.service.CovarianceAnswer;
 import eigencov.service.CovarianceForm;
 import eigencov.service.CovarianceMatrix;
@@ -12,10 +13,13 @@ import eigencov.service.ExposuresQuery;
 import eigencov.service.FactorForm;
 import eigencov.service.QueryService;
 import eigencov.service.RiskQuery;
+import eigencov.service.Weights;
 import io.javalin.config.RoutesConfig;
 import io.javalin.http.Context;
 
 import java.io.IOException;
+import java.nio.ByteBuffer;
+import java.nio.charset.StandardCharsets;
 import java.util.HashSet;
 import java.util.List;
 import java.util.Map;
@@ -79,7 +83,8 @@ public final class QueryRoutes implements RouteModule {
     }
 
     /** POST /risk body. */
-    record RiskBody(Map<String, Double> weights, Map<String, Double> benchmark, String scale, Integer horizonDays) {
+    record RiskBody(@JsonDeserialize(using = WeightsDeserializer.class) Weights weights,
+                    @JsonDeserialize(using = WeightsDeserializer.class) Weights benchmark, String scale, Integer horizonDays) {
     }
 
     @Override
@@ -117,8 +122,8 @@ public final class QueryRoutes implements RouteModule {
                     List.of(FieldError.field("Accept", "factor form is JSON only")));
         }
         CovarianceAnswer a = service.covariance(model(ctx), p.selector(), q);
-        String key = "covariance|" + q.form() + "|" + scaleKey(q.scale()) + "|" + q.correlation() + "|" + q.missing()
-                + "|" + String.join(",", q.tickers());
+        byte[] key = key("covariance|" + q.form() + "|" + scaleKey(q.scale()) + "|" + q.correlation() + "|" + q.missing()
+                + "|" + String.join(",", q.tickers()));
         if (a instanceof CovarianceMatrix m) {
             responses.covarianceMatrix(ctx, rep, m, key);
         } else {
@@ -139,13 +144,13 @@ public final class QueryRoutes implements RouteModule {
     }
 
     private void exposures(Context ctx, QueryParams p, Representation rep, ExposuresQuery q) {
-        responses.exposures(ctx, rep, service.exposures(model(ctx), p.selector(), q), "exposures|" + q.missing() + "|" + String.join(",", q.tickers()));
+        responses.exposures(ctx, rep, service.exposures(model(ctx), p.selector(), q), key("exposures|" + q.missing() + "|" + String.join(",", q.tickers())));
     }
 
     private void factors(Context ctx) {
         QueryParams p = QueryParams.of(ctx.queryParamMap(), FIT_ONLY);
         Representation.negotiate(ctx.header("Accept"), JSON_ONLY);
-        responses.factors(ctx, service.factors(model(ctx), p.selector()), "factors");
+        responses.factors(ctx, service.factors(model(ctx), p.selector()), key("factors"));
     }
 
     private void factorReturns(Context ctx) {
@@ -154,7 +159,7 @@ public final class QueryRoutes implements RouteModule {
         var from = p.date("from");
         var to = p.date("to");
         responses.factorReturns(ctx, rep, service.factorReturns(model(ctx), p.selector(), from, to),
-                "factor-returns from=" + from + " to=" + to);
+                key("factor-returns from=" + from + " to=" + to));
     }
 
     private void risk(Context ctx) throws IOException {
@@ -165,27 +170,41 @@ public final class QueryRoutes implements RouteModule {
         responses.risk(ctx, service.risk(model(ctx), p.selector(), q), riskKey(q));
     }
 
-    /**
-     * The normalised request for the ETag. Weights enter as their exact bits in hex: the
-     * benchmark showed decimal formatting of 3,000 weights costing more than the risk itself.
-     */
-    private static String riskKey(RiskQuery q) {
-        StringBuilder sb = new StringBuilder(40 * (q.weights().size() + (q.benchmark() == null ? 0 : q.benchmark().size()) + 1));
-        sb.append("risk|").append(scaleKey(q.scale())).append('|').append(q.missing()).append("|weights");
-        weightsKey(sb, q.weights());
-        if (q.benchmark() != null) weightsKey(sb.append("|benchmark"), q.benchmark());
-        return sb.toString();
+    private static byte[] key(String normalised) {
+        return normalised.getBytes(StandardCharsets.UTF_8);
     }
 
-    private static void weightsKey(StringBuilder sb, Map<String, Double> w) {
-        for (Map.Entry<String, Double> e : w.entrySet()) {
-            sb.append(',').append(e.getKey()).append('=');
-            long bits = Double.doubleToLongBits(e.getValue());
-            for (int shift = 60; shift >= 0; shift -= 4) sb.append(HEX[(int) (bits >>> shift) & 0xF]);
+    /**
+     * The normalised request for the ETag, as bytes: each ticker (ASCII, checked by RiskQuery) and the
+     * exact bits of its weight. Building it as text (decimal, then hex digits) cost more than the
+     * risk itself for a 3,000-name portfolio.
+     */
+    private static byte[] riskKey(RiskQuery q) {
+        byte[] head = key("risk|" + scaleKey(q.scale()) + "|" + q.missing() + "|weights");
+        byte[] benchHead = key("|benchmark");
+        int size = head.length + keyBytes(q.weights()) + (q.benchmark() == null ? 0 : benchHead.length + keyBytes(q.benchmark()));
+        ByteBuffer b = ByteBuffer.allocate(size);
+        b.put(head);
+        putWeights(b, q.weights());
+        if (q.benchmark() != null) putWeights(b.put(benchHead), q.benchmark());
+        return b.array();
+    }
+
+    /** ",TICKER=" and eight bytes of weight per name. */
+    private static int keyBytes(Weights w) {
+        int n = 0;
+        for (int i = 0; i < w.size(); i++) n += w.ticker(i).length() + 10;
+        return n;
+    }
+
+    private static void putWeights(ByteBuffer b, Weights w) {
+        for (int i = 0; i < w.size(); i++) {
+            String t = w.ticker(i);
+            b.put((byte) ',');
+            for (int c = 0; c < t.length(); c++) b.put((byte) t.charAt(c));
+            b.put((byte) '=').putLong(Double.doubleToLongBits(w.weight(i)));
         }
     }
-
-    private static final char[] HEX = "0123456789abcdef".toCharArray();
 
     private static String scaleKey(eigencov.service.Scale s) {
         return s.name() + ":" + s.days();

@@ -42,16 +42,16 @@ final class ResponseSender {
     }
 
     /**
-     * @param requestKey  the normalised request (everything that shapes the answer except the fit)
+     * @param requestKey  the normalised request (everything that shapes the answer except the fit), as bytes
      * @param approxBytes rough body size, used only to decide on compression
      * @param compressible false for binary formats that do not compress (float64 mantissas)
      */
-    static void send(Context ctx, FitRef fit, Representation rep, String requestKey, long approxBytes,
+    static void send(Context ctx, FitRef fit, Representation rep, byte[] requestKey, long approxBytes,
                      boolean compressible, Body body) {
         send(ctx, fit, rep, requestKey, approxBytes, compressible, -1, body);
     }
 
-    private static void send(Context ctx, FitRef fit, Representation rep, String requestKey, long approxBytes,
+    private static void send(Context ctx, FitRef fit, Representation rep, byte[] requestKey, long approxBytes,
                              boolean compressible, long exactLength, Body body) {
         boolean gzip = compressible && approxBytes >= GZIP_MIN_BYTES && acceptsGzip(ctx.header("Accept-Encoding"));
         String etag = etag(fit, ctx.path(), rep, requestKey, gzip);
@@ -141,7 +141,7 @@ final class ResponseSender {
     }
 
     /** Sends a binary body of known length (never compressed). */
-    static void sendBinary(Context ctx, FitRef fit, Representation rep, String requestKey, long length, Body body) {
+    static void sendBinary(Context ctx, FitRef fit, Representation rep, byte[] requestKey, long length, Body body) {
         send(ctx, fit, rep, requestKey, length, false, length, body);
     }
 
@@ -184,12 +184,12 @@ final class ResponseSender {
     }
 
     /** Strong tag: SHA-256 of fit id, path, format, normalised request and encoding (first 128 bits, base64url). */
-    static String etag(FitRef fit, String path, Representation rep, String requestKey, boolean gzip) {
+    static String etag(FitRef fit, String path, Representation rep, byte[] requestKey, boolean gzip) {
         try {
             MessageDigest md = MessageDigest.getInstance("SHA-256");
             md.update((fit.id() + "\n" + fit.model() + "\n" + path + "\n" + rep + "\n" + (gzip ? "gzip" : "identity") + "\n")
                     .getBytes(StandardCharsets.UTF_8));
-            md.update(requestKey.getBytes(StandardCharsets.UTF_8));
+            md.update(requestKey);
             byte[] h = md.digest();
             return "\"" + Base64.getUrlEncoder().withoutPadding().encodeToString(java.util.Arrays.copyOf(h, 16)) + "\"";
         } catch (NoSuchAlgorithmException e) {

@@ -8,7 +8,6 @@ import eigencov.math.RiskCalculator;
 import java.time.LocalDate;
 import java.util.ArrayList;
 import java.util.List;
-import java.util.Map;
 
 /**
  * Answers queries from served fits: covariance (matrix or factor form), exposures, factors, factor
@@ -77,13 +76,13 @@ public final class QueryService {
     /** Risk of a portfolio, with tracking error when a benchmark is given. */
     public RiskAnswer risk(String model, FitSelector selector, RiskQuery q) {
         ServedFit served = resolve(model, selector);
-        List<String> names = new ArrayList<>(q.weights().keySet());
+        List<String> names = q.weights().tickers();
         TickerSelection sel = TickerSelection.of(served.result(), names, i -> "weights." + names.get(i));
         List<InvalidInputException.Issue> issues = new ArrayList<>(sel.issues());
         TickerSelection bench = null;
         List<String> benchNames = null;
         if (q.benchmark() != null) {
-            benchNames = new ArrayList<>(q.benchmark().keySet());
+            benchNames = q.benchmark().tickers();
             List<String> bn = benchNames;
             bench = TickerSelection.of(served.result(), bn, i -> "benchmark." + bn.get(i));
             issues.addAll(bench.issues());
@@ -92,8 +91,8 @@ public final class QueryService {
         requireSome(served, sel, "weights");
         if (bench != null) requireSome(served, bench, "benchmark");
 
-        double[] w = weightsOf(q.weights(), sel.kept());
-        double[] bw = bench == null ? null : weightsOf(q.benchmark(), bench.kept());
+        double[] w = weightsOf(q.weights(), sel);
+        double[] bw = bench == null ? null : weightsOf(q.benchmark(), bench);
         PortfolioRisk risk = RiskCalculator.portfolio(served.result().model(), sel.rows(), w,
                 bench == null ? null : bench.rows(), bw, q.scale().varianceMultiplier());
         List<String> omitted = new ArrayList<>(sel.omitted());
@@ -151,9 +150,10 @@ public final class QueryService {
         return new FactorForm(served.ref(), sel.kept(), sel.omitted(), scale, k, b, f, d);
     }
 
-    private static double[] weightsOf(Map<String, Double> weights, List<String> kept) {
-        double[] w = new double[kept.size()];
-        for (int i = 0; i < w.length; i++) w[i] = weights.get(kept.get(i));
+    private static double[] weightsOf(Weights weights, TickerSelection sel) {
+        int[] at = sel.positions();
+        double[] w = new double[at.length];
+        for (int i = 0; i < w.length; i++) w[i] = weights.weight(at[i]);
         return w;
     }
 }

@@ -11,9 +11,13 @@ import java.util.Map;
 
 /**
  * Requested tickers matched against a fit's universe: model rows of the covered ones (request
- * order), the uncovered ones, and, for each uncovered one, a located issue saying why.
+ * order) and where each stood in the request, the uncovered ones, and, for each uncovered one, a
+ * located issue saying why. Internal to the service: the arrays are not copied.
+ *
+ * @param rows      model row of each kept ticker
+ * @param positions request position of each kept ticker (rows[j] answers tickers[positions[j]])
  */
-record TickerSelection(int[] rows, List<String> kept, List<String> omitted, List<InvalidInputException.Issue> issues) {
+record TickerSelection(int[] rows, int[] positions, List<String> kept, List<String> omitted, List<InvalidInputException.Issue> issues) {
 
     /**
      * @param fieldOf names the request field of the i-th requested ticker (e.g. {@code tickers[3]}, {@code weights.X})
@@ -21,6 +25,7 @@ record TickerSelection(int[] rows, List<String> kept, List<String> omitted, List
     static TickerSelection of(FitResult fit, List<String> tickers, java.util.function.IntFunction<String> fieldOf) {
         FactorModel m = fit.model();
         int[] rows = new int[tickers.size()];
+        int[] positions = new int[tickers.size()];
         int n = 0;
         List<String> kept = new ArrayList<>(tickers.size());
         List<String> omitted = new ArrayList<>();
@@ -30,6 +35,7 @@ record TickerSelection(int[] rows, List<String> kept, List<String> omitted, List
             String t = tickers.get(i);
             int row = m.indexOf(t);
             if (row >= 0) {
+                positions[n] = i;
                 rows[n++] = row;
                 kept.add(t);
                 continue;
@@ -42,7 +48,8 @@ record TickerSelection(int[] rows, List<String> kept, List<String> omitted, List
                     : "'" + t + "' was excluded from the fit (" + why.reason() + ": " + why.observations()
                     + " observations, " + why.required() + " required)"));
         }
-        return new TickerSelection(java.util.Arrays.copyOf(rows, n), kept, omitted, issues);
+        return n == rows.length ? new TickerSelection(rows, positions, kept, omitted, issues)
+                : new TickerSelection(java.util.Arrays.copyOf(rows, n), java.util.Arrays.copyOf(positions, n), kept, omitted, issues);
     }
 
     private static Map<String, Exclusion> byTicker(List<Exclusion> list) {

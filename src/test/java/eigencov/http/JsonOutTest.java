@@ -112,6 +112,61 @@ class JsonOutTest {
         }
     }
 
+    @Test
+    void writes_shaped_rows_as_jackson_writes_each_object_including_the_rows_that_take_the_general_path() throws IOException {
+        SplittableRandom rnd = new SplittableRandom(13L);
+        int n = 2_000; // about 200 KB: the 16 KB buffer fills at every offset within a row
+        List<String> labels = new java.util.ArrayList<>();
+        double[][] cols = new double[3][n];
+        for (int i = 0; i < n; i++) {
+            int kind = rnd.nextInt(40);
+            labels.add(switch (kind) {
+                case 0 -> "";
+                case 1 -> "q\"uote\\" + i;
+                case 2 -> "caf\u00e9" + i;
+                case 3 -> "L".repeat(64);
+                case 4 -> "L".repeat(65) + i;
+                case 5 -> "tab\t" + i;
+                default -> "S" + i;
+            });
+            for (int j = 0; j < 3; j++) {
+                int v = rnd.nextInt(60);
+                cols[j][i] = v == 0 ? Double.NaN : v == 1 ? Double.NEGATIVE_INFINITY : v == 2 ? -0.0 : v == 3 ? Double.MIN_VALUE
+                        : v == 4 ? 1e300 : rnd.nextGaussian() * Math.pow(10, rnd.nextInt(-9, 9));
+            }
+        }
+        String[] names = {"weight", "m\u00e9\"x", "c"};
+        JsonOut.RowShape three = new JsonOut.RowShape("ticker", names);
+        JsonOut.RowShape one = new JsonOut.RowShape("label", "only");
+        assertSameBytes(g -> {
+            g.startObject().number("before", 1.5);
+            g.shapedRows("rows", three, labels, cols[0], cols[1], cols[2]);
+            g.shapedRows("none", one, List.of(), cols[0]);
+            g.shapedRows("single", one, labels.subList(0, 7), cols[2]);
+            g.number("after", 2.5).endObject();
+        }, j -> {
+            j.writeStartObject();
+            j.writeNumberField("before", 1.5);
+            jacksonShaped(j, "rows", "ticker", names, labels, cols);
+            jacksonShaped(j, "none", "label", new String[] {"only"}, List.of(), new double[][] {cols[0]});
+            jacksonShaped(j, "single", "label", new String[] {"only"}, labels.subList(0, 7), new double[][] {cols[2]});
+            j.writeNumberField("after", 2.5);
+            j.writeEndObject();
+        });
+    }
+
+    private static void jacksonShaped(JsonGenerator j, String field, String label, String[] names, List<String> labels,
+                                      double[][] cols) throws IOException {
+        j.writeArrayFieldStart(field);
+        for (int i = 0; i < labels.size(); i++) {
+            j.writeStartObject();
+            j.writeStringField(label, labels.get(i));
+            for (int c = 0; c < names.length; c++) j.writeNumberField(names[c], cols[c][i]);
+            j.writeEndObject();
+        }
+        j.writeEndArray();
+    }
+
     /** "matrix": rows x cols as arrays of rows, through Jackson. */
     private static void jacksonRows(JsonGenerator j, double[] m, int rows, int cols) throws IOException {
         j.writeArrayFieldStart("matrix");

@@ -1,0 +1,81 @@
+package eigencov.service;
+
+import java.util.AbstractList;
+import java.util.Arrays;
+import java.util.List;
+import java.util.Map;
+import java.util.RandomAccess;
+
+/**
+ * Portfolio (or benchmark) weights in request order: ticker i holds weight i. Immutable; the
+ * arrays are copied in and never handed out, so reading a 3,000-name portfolio allocates nothing
+ * per name (a {@code Map<String, Double>} cost a node and a boxed double for each, and hash
+ * lookups to read them back).
+ */
+public final class Weights {
+    private final String[] tickers;
+    private final double[] values;
+    private final List<String> tickerList;
+
+    /**
+     * @param tickers names in request order (validity is checked by {@link RiskQuery})
+     * @param values  weight of each name; NaN where the request gave none (a null)
+     * @param count   how many of the leading entries hold
+     */
+    public Weights(String[] tickers, double[] values, int count) {
+        if (count < 0 || count > tickers.length || count > values.length) {
+            throw new IllegalArgumentException("count " + count + " outside the " + tickers.length + " tickers / " + values.length + " values");
+        }
+        this.tickers = Arrays.copyOf(tickers, count);
+        this.values = Arrays.copyOf(values, count);
+        this.tickerList = new TickerList(this.tickers);
+    }
+
+    /** Weights from a map, in its iteration order (a LinkedHashMap keeps the caller's order); a null value counts as missing. */
+    public static Weights of(Map<String, Double> weights) {
+        String[] t = new String[weights.size()];
+        double[] v = new double[weights.size()];
+        int i = 0;
+        for (Map.Entry<String, Double> e : weights.entrySet()) {
+            t[i] = e.getKey();
+            v[i++] = e.getValue() == null ? Double.NaN : e.getValue();
+        }
+        return new Weights(t, v, i);
+    }
+
+    public int size() {
+        return tickers.length;
+    }
+
+    public String ticker(int i) {
+        return tickers[i];
+    }
+
+    public double weight(int i) {
+        return values[i];
+    }
+
+    /** The tickers in request order, as an unmodifiable view. */
+    public List<String> tickers() {
+        return tickerList;
+    }
+
+    /** Unmodifiable, copy-free view of the ticker array. */
+    private static final class TickerList extends AbstractList<String> implements RandomAccess {
+        private final String[] a;
+
+        TickerList(String[] a) {
+            this.a = a;
+        }
+
+        @Override
+        public String get(int index) {
+            return a[index];
+        }
+
+        @Override
+        public int size() {
+            return a.length;
+        }
+    }
+}
