@@ -24,13 +24,8 @@ import java.util.concurrent.ArrayBlockingQueue;
  */
 final class JsonOut implements AutoCloseable {
     static final int BUFFER_BYTES = 16 * 1024;
-    /**
-     * Buffer for large answers. Each write to the socket wakes the client to read it (on one machine
-     * the client then preempts the writer: a perf record of the risk benchmark found most of the
-     * server's context switches right after its writes), so large answers go out in few large
-     * writes. Kept below half a G1 region (512 KB at the smallest) so that it is no humongous object.
-     */
-    static final int LARGE_BUFFER_BYTES = 256 * 1024;
+    /** Buffer for large answers: one of the shared {@link WriteBuffers}, given back on {@link #close()}. */
+    static final int LARGE_BUFFER_BYTES = WriteBuffers.BYTES;
     private static final int MAX_DEPTH = 32;
     /** Longest string start {@link #quoted} reserves room for at once. */
     private static final int QUOTED_RUN = 256;
@@ -61,7 +56,8 @@ final class JsonOut implements AutoCloseable {
     }
 
     private final OutputStream out;
-    private final byte[] buf;
+    /** Null once closed. */
+    private byte[] buf;
     private int pos;
     /** Per nesting level: whether the next element needs a comma before it. */
     private final boolean[] comma = new boolean[MAX_DEPTH];
@@ -77,7 +73,7 @@ final class JsonOut implements AutoCloseable {
     JsonOut(OutputStream out, int bufferBytes) {
         if (bufferBytes < 1024) throw new IllegalArgumentException("bufferBytes must be at least 1024, was " + bufferBytes);
         this.out = out;
-        this.buf = new byte[bufferBytes];
+        this.buf = bufferBytes == LARGE_BUFFER_BYTES ? WriteBuffers.take() : new byte[bufferBytes];
     }
 
     JsonOut startObject() throws IOException {
@@ -465,9 +461,16 @@ final class JsonOut implements AutoCloseable {
         }
     }
 
+    /** Flushes (the stream stays open) and gives a shared buffer back; the writer is unusable afterwards. */
     @Override
     public void close() throws IOException {
-        flush();
+        if (buf == null) return;
+        try {
+            flush();
+        } finally {
+            WriteBuffers.giveBack(buf);
+            buf = null;
+        }
     }
 
     private JsonOut open(char bracket) throws IOException {

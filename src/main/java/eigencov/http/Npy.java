@@ -19,8 +19,8 @@ final class Npy {
     static final String MEDIA_TYPE = "application/x-npy";
     private static final byte[] MAGIC = {(byte) 0x93, 'N', 'U', 'M', 'P', 'Y', 1, 0};
     private static final int ALIGN = 64;
-    /** 256 KB per write: few wake-ups of the reader, and no humongous array (see JsonOut.LARGE_BUFFER_BYTES). */
-    private static final int CHUNK_DOUBLES = 32 * 1024;
+    /** One shared 256 KB buffer per answer: few wake-ups of the reader (see {@link WriteBuffers}). */
+    private static final int CHUNK_DOUBLES = WriteBuffers.BYTES / 8;
 
     private Npy() {
     }
@@ -32,7 +32,7 @@ final class Npy {
 
     /**
      * Writes the file of a {@code rows x cols} matrix (row-major {@code values}) to {@code out},
-     * through one 256 KB buffer: no copy of the whole matrix is made.
+     * through one shared 256 KB buffer: no copy of the whole matrix is made.
      */
     static void write(OutputStream out, int rows, int cols, double[] values) throws IOException {
         write(out, rows, cols, DoubleBuffer.wrap(values));
@@ -44,15 +44,19 @@ final class Npy {
             throw new IllegalArgumentException("values length " + values.remaining() + " != " + rows + " x " + cols);
         }
         out.write(header(rows, cols));
-        byte[] chunk = new byte[CHUNK_DOUBLES * 8];
-        DoubleBuffer doubles = ByteBuffer.wrap(chunk).order(ByteOrder.LITTLE_ENDIAN).asDoubleBuffer();
-        DoubleBuffer src = values.duplicate();
-        while (src.hasRemaining()) {
-            int len = Math.min(CHUNK_DOUBLES, src.remaining());
-            doubles.clear();
-            doubles.put(src.slice().limit(len));
-            src.position(src.position() + len);
-            out.write(chunk, 0, len * 8);
+        byte[] chunk = WriteBuffers.take();
+        try {
+            DoubleBuffer doubles = ByteBuffer.wrap(chunk).order(ByteOrder.LITTLE_ENDIAN).asDoubleBuffer();
+            DoubleBuffer src = values.duplicate();
+            while (src.hasRemaining()) {
+                int len = Math.min(CHUNK_DOUBLES, src.remaining());
+                doubles.clear();
+                doubles.put(src.slice().limit(len));
+                src.position(src.position() + len);
+                out.write(chunk, 0, len * 8);
+            }
+        } finally {
+            WriteBuffers.giveBack(chunk);
         }
     }
 

@@ -61,7 +61,8 @@ public final class QueryRoutes implements RouteModule {
         this.responses = new QueryResponses();
         this.covarianceBody = strictReader(mapper, CovarianceBody.class);
         this.exposuresBody = strictReader(mapper, ExposuresBody.class);
-        this.riskBody = strictReader(mapper, RiskBody.class);
+        // repeated keys are found by RiskBodyDeserializer and RiskQuery, not by the parser (see there)
+        this.riskBody = mapper.readerFor(RiskBody.class).without(DeserializationFeature.ACCEPT_FLOAT_AS_INT);
     }
 
     /**
@@ -83,8 +84,8 @@ public final class QueryRoutes implements RouteModule {
     }
 
     /** POST /risk body. */
-    record RiskBody(@JsonDeserialize(using = WeightsDeserializer.class) Weights weights,
-                    @JsonDeserialize(using = WeightsDeserializer.class) Weights benchmark, String scale, Integer horizonDays) {
+    @JsonDeserialize(using = RiskBodyDeserializer.class)
+    record RiskBody(Weights weights, Weights benchmark, String scale, Integer horizonDays) {
     }
 
     @Override

@@ -27,9 +27,15 @@ final class WeightsDeserializer extends StdDeserializer<Weights> {
     @Override
     public Weights deserialize(JsonParser p, DeserializationContext ctxt) throws IOException {
         if (!p.isExpectedStartObjectToken()) return (Weights) ctxt.handleUnexpectedToken(Weights.class, p);
-        String[] tickers = new String[256];
-        double[] values = new double[256];
-        int n = 0;
+        Scratch scratch = SCRATCH.get();
+        try {
+            return read(p, ctxt, scratch);
+        } finally {
+            scratch.clear();
+        }
+    }
+
+    private static Weights read(JsonParser p, DeserializationContext ctxt, Scratch scratch) throws IOException {
         for (String name = p.nextFieldName(); name != null; name = p.nextFieldName()) {
             JsonToken t = p.nextToken();
             double w;
@@ -45,13 +51,41 @@ final class WeightsDeserializer extends StdDeserializer<Weights> {
                     throw JsonMappingException.wrapWithPath(e, (Object) null, name);
                 }
             }
+            scratch.add(name, w);
+        }
+        return new Weights(scratch.tickers, scratch.values, scratch.n);
+    }
+
+    /**
+     * Growing arrays kept per thread between requests (Jetty's threads are pooled): growing fresh
+     * ones for each 3,000-name portfolio was most of what reading it allocated. Weights copies out
+     * of them; the names are cleared afterwards, and arrays grown past {@link #MAX_KEPT} are dropped.
+     */
+    private static final ThreadLocal<Scratch> SCRATCH = ThreadLocal.withInitial(Scratch::new);
+
+    private static final class Scratch {
+        static final int INITIAL = 256;
+        static final int MAX_KEPT = 1 << 16;
+        String[] tickers = new String[INITIAL];
+        double[] values = new double[INITIAL];
+        int n;
+
+        void add(String ticker, double weight) {
             if (n == tickers.length) {
                 tickers = Arrays.copyOf(tickers, 2 * n);
                 values = Arrays.copyOf(values, 2 * n);
             }
-            tickers[n] = name;
-            values[n++] = w;
+            tickers[n] = ticker;
+            values[n++] = weight;
         }
-        return new Weights(tickers, values, n);
+
+        void clear() {
+            Arrays.fill(tickers, 0, n, null);
+            n = 0;
+            if (tickers.length > MAX_KEPT) {
+                tickers = new String[INITIAL];
+                values = new double[INITIAL];
+            }
+        }
     }
 }

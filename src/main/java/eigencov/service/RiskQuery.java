@@ -6,7 +6,7 @@ import java.util.List;
 /**
  * A portfolio risk request. Weights are fractions of capital (long or short), in answer order.
  *
- * @param weights   portfolio weights (not empty, every ticker well formed, every value finite)
+ * @param weights   portfolio weights (not empty, every ticker well formed and given once, every value finite)
  * @param benchmark benchmark weights for the tracking error, or null
  * @param scale     horizon of the variances
  * @param missing   what to do with tickers the fit does not cover (in weights and benchmark alike)
@@ -18,7 +18,6 @@ public record RiskQuery(Weights weights, Weights benchmark, Scale scale, Missing
         if (scale == null || missing == null) throw new IllegalArgumentException("scale and missing are required");
     }
 
-    /** Repeated tickers are refused where the body is read (a JSON object with a repeated key). */
     private static void check(Weights w, String field) {
         if (w == null) throw InvalidInputException.field(field, "is required");
         if (w.size() == 0) throw InvalidInputException.field(field, "must hold at least one ticker");
@@ -35,6 +34,13 @@ public record RiskQuery(Weights weights, Weights benchmark, Scale scale, Missing
             if (issue != null) {
                 if (issues == null) issues = new ArrayList<>();
                 issues.add(new InvalidInputException.Issue(null, at, issue));
+            }
+        }
+        if (issues == null) {
+            int repeat = w.firstRepeat();
+            if (repeat >= 0) {
+                String t = w.ticker(repeat);
+                issues = List.of(new InvalidInputException.Issue(null, field + "." + t, "'" + t + "' is given more than once"));
             }
         }
         if (issues != null) {

@@ -55,6 +55,29 @@ public final class Weights {
         return values[i];
     }
 
+    /**
+     * Position of the first ticker that repeats an earlier one, or -1 when all differ. An open
+     * addressing table of positions: no entry object per name, as a hash set would allocate.
+     */
+    public int firstRepeat() {
+        int n = tickers.length;
+        if (n < 2) return -1;
+        int capacity = Integer.highestOneBit(2 * n - 1) << 1; // a power of two >= 2n
+        int mask = capacity - 1;
+        int[] slots = new int[capacity]; // position + 1, 0 = free
+        for (int i = 0; i < n; i++) {
+            String t = tickers[i];
+            int h = t.hashCode();
+            int s = (h ^ h >>> 16) & mask;
+            for (int at = slots[s]; at != 0; at = slots[s]) {
+                if (tickers[at - 1].equals(t)) return i;
+                s = (s + 1) & mask;
+            }
+            slots[s] = i + 1;
+        }
+        return -1;
+    }
+
     /** The tickers in request order, as an unmodifiable view. */
     public List<String> tickers() {
         return tickerList;

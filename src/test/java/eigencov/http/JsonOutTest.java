@@ -167,6 +167,28 @@ class JsonOutTest {
         j.writeEndArray();
     }
 
+    @Test
+    void large_buffers_are_shared_between_answers_without_stale_bytes() throws IOException {
+        SplittableRandom rnd = new SplittableRandom(17L);
+        // a long answer, then shorter ones into the buffer it gave back; closing twice is harmless
+        for (int n : new int[] {200, 3, 90, 1}) {
+            double[] m = new double[n * n];
+            for (int i = 0; i < m.length; i++) m[i] = rnd.nextGaussian();
+            ByteArrayOutputStream ours = new ByteArrayOutputStream();
+            JsonOut g = new JsonOut(ours, JsonOut.LARGE_BUFFER_BYTES);
+            g.startObject().rows("matrix", m, n, n).endObject();
+            g.close();
+            g.close();
+            ByteArrayOutputStream theirs = new ByteArrayOutputStream();
+            try (JsonGenerator j = HttpApi.objectMapper().createGenerator(theirs, JsonEncoding.UTF8)) {
+                j.writeStartObject();
+                jacksonRows(j, m, n, n);
+                j.writeEndObject();
+            }
+            assertArrayEquals(theirs.toByteArray(), ours.toByteArray(), "answer of " + n + " x " + n);
+        }
+    }
+
     /** "matrix": rows x cols as arrays of rows, through Jackson. */
     private static void jacksonRows(JsonGenerator j, double[] m, int rows, int cols) throws IOException {
         j.writeArrayFieldStart("matrix");
