@@ -165,16 +165,27 @@ final class JsonOut implements AutoCloseable {
      * label and its numbers.
      */
     static final class RowShape {
+        private final String labelFieldName;
+        private final String[] numberFieldNames;
         private final Name labelName;
         private final Name[] numberNames;
         /** {@code {"label":"} */
         private final Name head;
         /** {@code ","first":}, then {@code ,"next":} for each further number field. */
         private final Name[] between;
+        /** Per number field: its values recur between answers ({@link RecurringNumbers}). */
+        private final boolean[] recurring;
         private final int fixedBytes;
 
         RowShape(String labelField, String... numberFields) {
+            this(labelField, numberFields, new boolean[numberFields.length]);
+        }
+
+        private RowShape(String labelField, String[] numberFields, boolean[] recurring) {
+            this.recurring = recurring;
             if (numberFields.length == 0) throw new IllegalArgumentException("a row shape needs at least one number field");
+            labelFieldName = labelField;
+            numberFieldNames = numberFields.clone();
             labelName = new Name(labelField);
             numberNames = new Name[numberFields.length];
             between = new Name[numberFields.length];
@@ -189,6 +200,23 @@ final class JsonOut implements AutoCloseable {
                 fixed += b.length + 8 + ShortestDouble.ROOM;
             }
             fixedBytes = fixed + 2; // the comma before the row and the closing brace
+        }
+
+        /**
+         * This shape with the values of {@code field} marked as recurring from answer to answer (a
+         * property of the fit, not of the request): their renderings are remembered.
+         */
+        RowShape recurring(String field) {
+            String[] names = new String[numberNames.length];
+            boolean[] r = recurring.clone();
+            int found = -1;
+            for (int j = 0; j < names.length; j++) {
+                names[j] = numberFieldNames[j];
+                if (names[j].equals(field)) found = j;
+            }
+            if (found < 0) throw new IllegalArgumentException("no number field " + field);
+            r[found] = true;
+            return new RowShape(labelFieldName, names, r);
         }
 
         int numbers() {
@@ -256,7 +284,7 @@ final class JsonOut implements AutoCloseable {
         for (int j = 0; j < columns.length; j++) {
             Name b = shape.between[j];
             p = copyPadded(b.padded, b.bytes.length, buf, p);
-            p = ShortestDouble.write(columns[j][i], buf, p);
+            p = shape.recurring[j] ? RecurringNumbers.write(columns[j][i], buf, p) : ShortestDouble.write(columns[j][i], buf, p);
         }
         buf[p++] = '}';
         pos = p;

@@ -34,9 +34,9 @@ import java.util.List;
  * in {@code X-Omitted} for CSV and {@code .npy}, and in {@code "omitted"} for JSON.
  */
 final class QueryResponses {
-    /** A portfolio's per-asset rows (beta to the first factor included). */
+    /** A portfolio's per-asset rows; an asset's beta to the first factor is a property of the fit, so it recurs. */
     private static final JsonOut.RowShape ASSET_ROW = new JsonOut.RowShape("ticker",
-            "weight", "marginal", "contribution", "specificContribution", "betaToFirstFactor");
+            "weight", "marginal", "contribution", "specificContribution", "betaToFirstFactor").recurring("betaToFirstFactor");
     /** Per-asset rows of the active (tracking error) decomposition. */
     private static final JsonOut.RowShape ACTIVE_ROW = new JsonOut.RowShape("ticker",
             "activeWeight", "marginal", "contribution", "specificContribution");

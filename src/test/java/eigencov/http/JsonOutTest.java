@@ -136,11 +136,13 @@ class JsonOutTest {
             }
         }
         String[] names = {"weight", "m\u00e9\"x", "c"};
-        JsonOut.RowShape three = new JsonOut.RowShape("ticker", names);
+        // the last column's renderings are remembered: written twice, the second time from memory
+        JsonOut.RowShape three = new JsonOut.RowShape("ticker", names).recurring("c");
         JsonOut.RowShape one = new JsonOut.RowShape("label", "only");
         assertSameBytes(g -> {
             g.startObject().number("before", 1.5);
             g.shapedRows("rows", three, labels, cols[0], cols[1], cols[2]);
+            g.shapedRows("again", three, labels, cols[0], cols[1], cols[2]);
             g.shapedRows("none", one, List.of(), cols[0]);
             g.shapedRows("single", one, labels.subList(0, 7), cols[2]);
             g.number("after", 2.5).endObject();
@@ -148,6 +150,7 @@ class JsonOutTest {
             j.writeStartObject();
             j.writeNumberField("before", 1.5);
             jacksonShaped(j, "rows", "ticker", names, labels, cols);
+            jacksonShaped(j, "again", "ticker", names, labels, cols);
             jacksonShaped(j, "none", "label", new String[] {"only"}, List.of(), new double[][] {cols[0]});
             jacksonShaped(j, "single", "label", new String[] {"only"}, labels.subList(0, 7), new double[][] {cols[2]});
             j.writeNumberField("after", 2.5);
