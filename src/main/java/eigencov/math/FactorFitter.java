@@ -213,7 +213,8 @@ public final class FactorFitter {
             throw new InsufficientDataException("every return series in the window is constant: no variance to fit");
         }
         double[] eigenvalues = pca.eigenvalues();
-        FactorCountReport count = FactorCount.choose(options.rule(), eigenvalues, assets, tEff, trace);
+        FactorCountReport count = options.hold().apply(FactorCount.choose(options.rule(), eigenvalues, assets, tEff, trace),
+                options.rule(), eigenvalues.length);
         int k = count.k();
         double[] v = pca.vectors(k);
         AlignmentReport alignment = SignAlignment.align(v, k, universe, scale, previous);

@@ -11,8 +11,10 @@ import java.util.Objects;
  * @param basis         covariance or correlation
  * @param specificFloor floor of specific variance as a share of the ticker's variance, in [0, 1)
  *                      (default {@value #DEFAULT_SPECIFIC_FLOOR}, common practice)
+ * @param hold          hysteresis on k across refits ({@link FactorHold#NONE}: k follows the rule)
  */
-public record FitOptions(FactorRule rule, Double halfLifeDays, double minCoverage, Basis basis, double specificFloor) {
+public record FitOptions(FactorRule rule, Double halfLifeDays, double minCoverage, Basis basis, double specificFloor,
+                         FactorHold hold) {
 
     /** Specific-variance floor as a share of S_ii: common practice (methods.md section 4), no canonical source. */
     public static final double DEFAULT_SPECIFIC_FLOOR = 0.05;
@@ -20,6 +22,7 @@ public record FitOptions(FactorRule rule, Double halfLifeDays, double minCoverag
     public FitOptions {
         Objects.requireNonNull(rule, "rule");
         Objects.requireNonNull(basis, "basis");
+        Objects.requireNonNull(hold, "hold");
         if (halfLifeDays != null && !(halfLifeDays > 0 && Double.isFinite(halfLifeDays))) {
             throw new IllegalArgumentException("halfLifeDays must be positive and finite, was " + halfLifeDays);
         }
@@ -29,6 +32,11 @@ public record FitOptions(FactorRule rule, Double halfLifeDays, double minCoverag
         if (!(specificFloor >= 0 && specificFloor < 1)) {
             throw new IllegalArgumentException("specificFloor must be in [0, 1), was " + specificFloor);
         }
+    }
+
+    /** Without a hold on k. */
+    public FitOptions(FactorRule rule, Double halfLifeDays, double minCoverage, Basis basis, double specificFloor) {
+        this(rule, halfLifeDays, minCoverage, basis, specificFloor, FactorHold.NONE);
     }
 
     /** Equal weights, covariance basis, default floor. */

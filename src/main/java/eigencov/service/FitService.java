@@ -131,7 +131,8 @@ public final class FitService {
                         + "; the model's window needs " + spec.windowDays());
             }
             ServedFit previous = served.previousFor(m.name(), date);
-            result = fitter.fit(w, spec.fitOptions(), previous == null ? null : previous.result().model());
+            result = fitter.fit(w, spec.fitOptions(previous == null ? null : previous.result().factorCount()),
+                    previous == null ? null : previous.result().model());
         } catch (InsufficientDataException | IllegalArgumentException e) {
             metrics.fitFailed(m.name(), e instanceof InsufficientDataException ? "insufficient-data" : "invalid-input");
             FitRow failed = fits.insertFailed(attempt, e.getMessage(), loadMs);

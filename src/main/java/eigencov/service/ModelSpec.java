@@ -3,6 +3,8 @@ package eigencov.service;
 import com.fasterxml.jackson.annotation.JsonInclude;
 import com.fasterxml.jackson.annotation.JsonPropertyOrder;
 import eigencov.math.Basis;
+import eigencov.math.FactorCountReport;
+import eigencov.math.FactorHold;
 import eigencov.math.FactorRule;
 import eigencov.math.FitOptions;
 
@@ -34,10 +36,21 @@ public record ModelSpec(String panel, Integer windowDays, Factors factors, Doubl
     public static final Pattern NAME = Pattern.compile("[A-Za-z0-9._-]{1,64}");
     static final List<String> RULES = List.of("fixed", "variance-share", "bai-ng", "eigenvalue-ratio", "random-matrix");
 
-    /** {@code {"rule": ..., "count"|"share"|"max": ...}}; which parameter applies depends on the rule. */
+    /**
+     * {@code {"rule": ..., "count"|"share"|"max": ..., "hold"?: n}}; which parameter applies depends on
+     * the rule. {@code hold} (data-driven rules only, default 1 = none): k changes only after the rule has
+     * disagreed with the current k in n consecutive fits (methods.md section 2, practice).
+     */
     @JsonInclude(JsonInclude.Include.NON_NULL)
-    public record Factors(String rule, Integer count, Double share, Integer max) {
+    public record Factors(String rule, Integer count, Double share, Integer max, Integer hold) {
+        /** Without a hold. */
+        public Factors(String rule, Integer count, Double share, Integer max) {
+            this(rule, count, share, max, null);
+        }
     }
+
+    /** Longest hold on k, in fits (a year of weekly refits). */
+    public static final int MAX_HOLD = 52;
 
     /** {@code {"every": "PT24H"}}: an ISO-8601 duration. */
     public record Refit(String every) {
@@ -105,6 +118,11 @@ public record ModelSpec(String panel, Integer windowDays, Factors factors, Doubl
         if (factors.count() != null && !"count".equals(needs)) add(out, "factors.count", "is not used by rule " + rule);
         if (factors.share() != null && !"share".equals(needs)) add(out, "factors.share", "is not used by rule " + rule);
         if (factors.max() != null && !"max".equals(needs)) add(out, "factors.max", "is not used by rule " + rule);
+        if (factors.hold() != null) {
+            if ("fixed".equals(rule)) add(out, "factors.hold", "is not used by rule fixed (its k never changes)");
+            else if (factors.hold() < 1 || factors.hold() > MAX_HOLD)
+                add(out, "factors.hold", "must be between 1 and " + MAX_HOLD + " fits, was " + factors.hold());
+        }
         if ("count".equals(needs)) {
             if (factors.count() == null) add(out, "factors.count", "is required by rule fixed");
             else if (factors.count() < 1) add(out, "factors.count", "must be at least 1, was " + factors.count());
@@ -123,6 +141,14 @@ public record ModelSpec(String panel, Integer windowDays, Factors factors, Doubl
 
     /** The engine's options for this (valid, defaulted) spec. */
     public FitOptions fitOptions() {
+        return fitOptions(null);
+    }
+
+    /**
+     * Options of a fit whose predecessor (the model's fit with the latest earlier as-of date) reported
+     * {@code previous} (null: none): carries the hold on k forward.
+     */
+    public FitOptions fitOptions(FactorCountReport previous) {
         FactorRule rule = switch (factors.rule()) {
             case "fixed" -> new FactorRule.Fixed(factors.count());
             case "variance-share" -> new FactorRule.VarianceShare(factors.share());
@@ -131,8 +157,9 @@ public record ModelSpec(String panel, Integer windowDays, Factors factors, Doubl
             case "random-matrix" -> new FactorRule.RandomMatrix();
             default -> throw new IllegalStateException("unknown rule " + factors.rule());
         };
+        FactorHold hold = FactorHold.after(factors.hold() == null ? 1 : factors.hold(), previous, rule);
         return new FitOptions(rule, halfLifeDays, minCoverage, Basis.valueOf(basis.toUpperCase(Locale.ROOT)),
-                specificFloor == null ? FitOptions.DEFAULT_SPECIFIC_FLOOR : specificFloor);
+                specificFloor == null ? FitOptions.DEFAULT_SPECIFIC_FLOOR : specificFloor, hold);
     }
 
     /** The scheduled refit period, or null. */

@@ -19,10 +19,14 @@ import static org.hamcrest.Matchers.contains;
 import static org.hamcrest.Matchers.containsString;
 import static org.hamcrest.Matchers.equalTo;
 import static org.hamcrest.Matchers.hasItem;
+import static org.hamcrest.Matchers.hasKey;
+import static org.hamcrest.Matchers.not;
 import static org.hamcrest.Matchers.hasSize;
 import static org.hamcrest.Matchers.notNullValue;
 import static org.hamcrest.Matchers.nullValue;
 import static org.hamcrest.Matchers.startsWith;
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
 
 class ModelEndpointsTest {
     private static final String SPEC = "{\"panel\": \"demo\", \"windowDays\": 40, \"factors\": {\"rule\": \"fixed\", \"count\": 2}, "
@@ -87,6 +91,9 @@ class ModelEndpointsTest {
             "\"count\": 2|\"share\": 0.5|400|factors.count",
             "\"rule\": \"fixed\", \"count\": 2|\"rule\": \"variance-share\", \"share\": 1.5|400|factors.share",
             "\"rule\": \"fixed\", \"count\": 2|\"rule\": \"bai-ng\"|400|factors.max",
+            "\"rule\": \"fixed\", \"count\": 2|\"rule\": \"fixed\", \"count\": 2, \"hold\": 3|400|factors.hold",
+            "\"rule\": \"fixed\", \"count\": 2|\"rule\": \"bai-ng\", \"max\": 5, \"hold\": 0|400|factors.hold",
+            "\"rule\": \"fixed\", \"count\": 2|\"rule\": \"bai-ng\", \"max\": 5, \"hold\": 53|400|factors.hold",
             "\"basis\": \"covariance\"|\"basis\": \"covariance\", \"halfLifeDays\": -5|400|halfLifeDays",
             "\"basis\": \"covariance\"|\"basis\": \"covariance\", \"refit\": {\"every\": \"daily\"}|400|refit.every",
             "\"basis\": \"covariance\"|\"basis\": \"covariance\", \"refit\": {\"every\": \"PT5S\"}|400|refit.every",
@@ -105,6 +112,39 @@ class ModelEndpointsTest {
                 .body("status", equalTo(status))
                 .body("errors.field", hasItem(field));
         given().get("/v1/models/bad").then().statusCode(404);
+    }
+
+    @Test
+    void a_hold_on_k_keeps_the_previous_k_until_the_rule_has_disagreed_in_that_many_fits() {
+        String low = SPEC.replace("\"rule\": \"fixed\", \"count\": 2", "\"rule\": \"variance-share\", \"share\": 0.01, \"hold\": 2");
+        given().contentType(ContentType.JSON).body(low).put("/v1/models/held").then().statusCode(201)
+                .body("factors.hold", equalTo(2)).body("factors.share", equalTo(0.01f));
+        // a 1 % share is met by one factor
+        fitHeld(dates.get(45), 1, 1, 0);
+        // the rule now wants many more factors; the first disagreeing fit keeps k = 1 ...
+        put("held", low.replace("0.01", "0.99"), 200);
+        int wanted = fitHeld(dates.get(50), 1, -1, 1);
+        assertTrue(wanted > 1, "a 99 % share needs more than one factor, the rule said " + wanted);
+        // ... the second one in a row follows the rule, and the count starts again
+        fitHeld(dates.get(55), wanted, wanted, 0);
+        fitHeld(dates.get(56), wanted, wanted, 0);
+        // without a hold, k follows the rule at once
+        put("held", low.replace(", \"hold\": 2", ""), 200);
+        given().contentType(ContentType.JSON).body("{\"asOf\": \"" + dates.get(57) + "\"}").post("/v1/models/held/fits").then()
+                .statusCode(201).body("k", equalTo(1)).body("diagnostics.factorCount.parameters", not(hasKey("hold.fits")));
+    }
+
+    /** Fits model "held" as of {@code asOf}, checks k and the hold's evidence (ruleK -1: any), returns the rule's k. */
+    private static int fitHeld(LocalDate asOf, int k, int ruleK, int disagreements) {
+        var r = given().contentType(ContentType.JSON).body("{\"asOf\": \"" + asOf + "\"}").post("/v1/models/held/fits").then()
+                .statusCode(201)
+                .body("k", equalTo(k))
+                .body("diagnostics.factorCount.k", equalTo(k))
+                .body("diagnostics.factorCount.parameters.'hold.fits'", equalTo(2.0f))
+                .body("diagnostics.factorCount.parameters.'hold.disagreements'", equalTo((float) disagreements));
+        float said = r.extract().path("diagnostics.factorCount.parameters.'hold.ruleK'");
+        if (ruleK > 0) assertEquals(ruleK, (int) said);
+        return (int) said;
     }
 
     @Test
