@@ -15,9 +15,10 @@ import java.util.Objects;
  * @param swaps          new factors that matched a previous factor of another position
  * @param weak           new factors whose best |cos| is below {@link #WEAK_COSINE}
  * @param overlap        subspace overlap ||C||_F^2 / min(k_new, k_old), C = cosine matrix; 1 = same span
+ * @param rotation       the optional Procrustes step ({@link FitOptions#rotate()}), or null when not asked for
  */
 public record AlignmentReport(String mode, int commonTickers, List<Integer> flipped, double[] cosines,
-                              int[] matched, List<Integer> swaps, List<Integer> weak, double overlap) {
+                              int[] matched, List<Integer> swaps, List<Integer> weak, double overlap, Rotation rotation) {
     public static final String FIRST_FIT = "first fit";
     public static final String PREVIOUS_FIT = "previous fit";
     /** Alignment weaker than this |cos| is reported (issue 3). */
@@ -30,6 +31,17 @@ public record AlignmentReport(String mode, int commonTickers, List<Integer> flip
         weak = List.copyOf(weak);
         cosines = cosines.clone();
         matched = matched.clone();
+    }
+
+    /** Signs only (no rotation asked for). */
+    public AlignmentReport(String mode, int commonTickers, List<Integer> flipped, double[] cosines,
+                           int[] matched, List<Integer> swaps, List<Integer> weak, double overlap) {
+        this(mode, commonTickers, flipped, cosines, matched, swaps, weak, overlap, null);
+    }
+
+    /** This report with the rotation step's outcome. */
+    public AlignmentReport withRotation(Rotation r) {
+        return new AlignmentReport(mode, commonTickers, flipped, cosines, matched, swaps, weak, overlap, r);
     }
 
     @Override

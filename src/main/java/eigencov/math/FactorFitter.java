@@ -238,8 +238,6 @@ public final class FactorFitter {
         for (int c = 0; c < k; c++) {
             f[c * k + c] = eigenvalues[c];
         }
-        FactorModel model = new FactorModel(universe, k, b, f, specific);
-
         // factor returns f_t = (x_t - mu)' E (standardised for correlation): rows of E M, unweighted
         double[] fr = new double[k * dates];
         Dense.leftMultiply(v, k, m, assets, dates, fr, par);
@@ -249,6 +247,10 @@ public final class FactorFitter {
                 factorReturns[t * k + c] = fr[c * dates + t] / sqrtW[t];
             }
         }
+        if (options.rotate()) {
+            alignment = alignment.withRotation(ProcrustesAlignment.align(b, f, factorReturns, k, universe, previous, alignment));
+        }
+        FactorModel model = new FactorModel(universe, k, b, f, specific);
         double[] share = new double[eigenvalues.length];
         for (int j = 0; j < share.length; j++) {
             share[j] = eigenvalues[j] / trace;

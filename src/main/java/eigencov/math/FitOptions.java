@@ -12,9 +12,11 @@ import java.util.Objects;
  * @param specificFloor floor of specific variance as a share of the ticker's variance, in [0, 1)
  *                      (default {@value #DEFAULT_SPECIFIC_FLOOR}, common practice)
  * @param hold          hysteresis on k across refits ({@link FactorHold#NONE}: k follows the rule)
+ * @param rotate        after sign alignment, rotate the factors onto the previous fit's (orthogonal Procrustes,
+ *                      {@link ProcrustesAlignment}); false: signs only
  */
 public record FitOptions(FactorRule rule, Double halfLifeDays, double minCoverage, Basis basis, double specificFloor,
-                         FactorHold hold) {
+                         FactorHold hold, boolean rotate) {
 
     /** Specific-variance floor as a share of S_ii: common practice (methods.md section 4), no canonical source. */
     public static final double DEFAULT_SPECIFIC_FLOOR = 0.05;
@@ -34,9 +36,9 @@ public record FitOptions(FactorRule rule, Double halfLifeDays, double minCoverag
         }
     }
 
-    /** Without a hold on k. */
+    /** Without a hold on k, signs-only alignment. */
     public FitOptions(FactorRule rule, Double halfLifeDays, double minCoverage, Basis basis, double specificFloor) {
-        this(rule, halfLifeDays, minCoverage, basis, specificFloor, FactorHold.NONE);
+        this(rule, halfLifeDays, minCoverage, basis, specificFloor, FactorHold.NONE, false);
     }
 
     /** Equal weights, covariance basis, default floor. */

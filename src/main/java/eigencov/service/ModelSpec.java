@@ -21,11 +21,22 @@ import java.util.regex.Pattern;
  * rather than defaulted silently. {@link #withDefaults()} fills the optional ones.
  *
  * @param refitOnIngest fit again after an ingest adds a new last date to the panel (default false)
+ * @param alignment     {@code sign} (default: each factor's sign follows the previous fit) or {@code rotate}
+ *                      (then also an orthogonal Procrustes rotation onto the previous fit's factors, reported)
  */
 @JsonInclude(JsonInclude.Include.NON_NULL)
-@JsonPropertyOrder({"panel", "windowDays", "factors", "halfLifeDays", "minCoverage", "basis", "specificFloor", "refit", "refitOnIngest"})
+@JsonPropertyOrder({"panel", "windowDays", "factors", "halfLifeDays", "minCoverage", "basis", "specificFloor", "refit", "refitOnIngest",
+        "alignment"})
 public record ModelSpec(String panel, Integer windowDays, Factors factors, Double halfLifeDays, Double minCoverage, String basis,
-                        Double specificFloor, Refit refit, Boolean refitOnIngest) {
+                        Double specificFloor, Refit refit, Boolean refitOnIngest, String alignment) {
+
+    /** Signs-only alignment (the default). */
+    public ModelSpec(String panel, Integer windowDays, Factors factors, Double halfLifeDays, Double minCoverage, String basis,
+                     Double specificFloor, Refit refit, Boolean refitOnIngest) {
+        this(panel, windowDays, factors, halfLifeDays, minCoverage, basis, specificFloor, refit, refitOnIngest, null);
+    }
+
+    static final List<String> ALIGNMENTS = List.of("sign", "rotate");
 
     /** Fewest window dates a spec may ask for. */
     public static final int MIN_WINDOW_DAYS = 20;
@@ -60,7 +71,7 @@ public record ModelSpec(String panel, Integer windowDays, Factors factors, Doubl
     public ModelSpec withDefaults() {
         return new ModelSpec(panel, windowDays, factors, halfLifeDays, minCoverage, basis == null ? null : basis.toLowerCase(Locale.ROOT),
                 specificFloor == null ? FitOptions.DEFAULT_SPECIFIC_FLOOR : specificFloor, refit,
-                refitOnIngest == null ? Boolean.FALSE : refitOnIngest);
+                refitOnIngest == null ? Boolean.FALSE : refitOnIngest, alignment);
     }
 
     /** Every problem of the spec, each naming its field; empty when valid. Does not check that the panel exists. */
@@ -81,6 +92,8 @@ public record ModelSpec(String panel, Integer windowDays, Factors factors, Doubl
             add(out, "basis", "must be covariance or correlation, was '" + basis + "'");
         if (specificFloor != null && !(specificFloor >= 0 && specificFloor < 1))
             add(out, "specificFloor", "must be in [0, 1), was " + specificFloor);
+        if (alignment != null && !ALIGNMENTS.contains(alignment))
+            add(out, "alignment", "must be sign or rotate, was '" + alignment + "'");
         if (refit != null) {
             if (refit.every() == null) add(out, "refit.every", "is required when refit is given (ISO-8601 duration such as PT24H)");
             else {
@@ -159,7 +172,7 @@ public record ModelSpec(String panel, Integer windowDays, Factors factors, Doubl
         };
         FactorHold hold = FactorHold.after(factors.hold() == null ? 1 : factors.hold(), previous, rule);
         return new FitOptions(rule, halfLifeDays, minCoverage, Basis.valueOf(basis.toUpperCase(Locale.ROOT)),
-                specificFloor == null ? FitOptions.DEFAULT_SPECIFIC_FLOOR : specificFloor, hold);
+                specificFloor == null ? FitOptions.DEFAULT_SPECIFIC_FLOOR : specificFloor, hold, "rotate".equals(alignment));
     }
 
     /** The scheduled refit period, or null. */

@@ -98,6 +98,7 @@ class ModelEndpointsTest {
             "\"basis\": \"covariance\"|\"basis\": \"covariance\", \"refit\": {\"every\": \"daily\"}|400|refit.every",
             "\"basis\": \"covariance\"|\"basis\": \"covariance\", \"refit\": {\"every\": \"PT5S\"}|400|refit.every",
             "\"basis\": \"covariance\"|\"basis\": \"diagonal\"|400|basis",
+            "\"basis\": \"covariance\"|\"basis\": \"covariance\", \"alignment\": \"procrustes\"|400|alignment",
             "\"basis\": \"covariance\"|\"basis\": \"covariance\", \"specificFloor\": 1|400|specificFloor",
             "\"basis\": \"covariance\"|\"basis\": \"covariance\", \"colour\": \"blue\"|400|colour",
             "\"rule\": \"fixed\"|\"rule\": \"fixed\", \"steps\": 3|400|factors.steps",
@@ -132,6 +133,28 @@ class ModelEndpointsTest {
         put("held", low.replace(", \"hold\": 2", ""), 200);
         given().contentType(ContentType.JSON).body("{\"asOf\": \"" + dates.get(57) + "\"}").post("/v1/models/held/fits").then()
                 .statusCode(201).body("k", equalTo(1)).body("diagnostics.factorCount.parameters", not(hasKey("hold.fits")));
+    }
+
+    @Test
+    void alignment_rotate_turns_a_refit_onto_the_previous_factors_and_reports_it() {
+        String rotate = SPEC.replace("\"basis\": \"covariance\"", "\"basis\": \"covariance\", \"alignment\": \"rotate\"");
+        given().contentType(ContentType.JSON).body(rotate).put("/v1/models/turned").then().statusCode(201)
+                .body("alignment", equalTo("rotate"));
+        given().contentType(ContentType.JSON).body("{\"asOf\": \"" + dates.get(45) + "\"}").post("/v1/models/turned/fits").then()
+                .statusCode(201)
+                .body("diagnostics.alignment.rotation.applied", equalTo(false))
+                .body("diagnostics.alignment.rotation.reason", equalTo("first fit"));
+        given().contentType(ContentType.JSON).body("{\"asOf\": \"" + dates.get(55) + "\"}").post("/v1/models/turned/fits").then()
+                .statusCode(201)
+                .body("diagnostics.alignment.rotation.applied", equalTo(true))
+                .body("diagnostics.alignment.rotation.matrix", hasSize(4));
+        // the factor covariance is R' F R: no longer diagonal, still symmetric
+        List<List<Float>> f = given().get("/v1/models/turned/factors").then().statusCode(200).extract().path("factorCovariance");
+        assertEquals(f.get(0).get(1), f.get(1).get(0));
+        assertTrue(f.get(0).get(1) != 0f, "off-diagonal " + f.get(0).get(1));
+        // a signs-only model says so with a null rotation
+        given().contentType(ContentType.JSON).body("{\"asOf\": \"" + dates.get(45) + "\"}").post("/v1/models/listed/fits").then()
+                .statusCode(201).body("diagnostics.alignment.rotation", nullValue());
     }
 
     /** Fits model "held" as of {@code asOf}, checks k and the hold's evidence (ruleK -1: any), returns the rule's k. */

@@ -69,6 +69,29 @@ class FitServiceTest {
         assertEquals(dates.get(79).plusDays(3), later.window().to());
     }
 
+    @Test
+    void a_rotated_refit_is_stored_with_its_rotation_and_its_non_diagonal_factor_covariance() {
+        List<LocalDate> dates = fx.panel("p", 12, 80, 3);
+        ModelSpec plain = ServiceFixture.spec("p", 40, null, false);
+        fx.models.put("m", new ModelSpec(plain.panel(), plain.windowDays(), plain.factors(), null, plain.minCoverage(), plain.basis(),
+                null, null, false, "rotate"));
+        FitView first = fx.fits.fit("m", dates.get(59), FitService.REQUEST);
+        FitView second = fx.fits.fit("m", dates.get(69), FitService.REQUEST);
+        FitResult served = fx.served.resolve("m", null, second.id()).result();
+        assertEquals("first fit", fx.served.resolve("m", null, first.id()).result().alignment().rotation().reason());
+        var rotation = served.alignment().rotation();
+        assertTrue(rotation.applied(), rotation.reason());
+        assertEquals(4, rotation.matrix().length);
+
+        ServedFits fresh = new ServedFits(fx.fitRepo, fx.modelRepo, new FitCodec(fx.mapper)); // reads the store, no cache
+        FitResult stored = fresh.resolve("m", null, second.id()).result();
+        assertEquals(rotation.reason(), stored.alignment().rotation().reason());
+        assertArrayEquals(rotation.matrix(), stored.alignment().rotation().matrix());
+        assertArrayEquals(served.model().factorCovariance(), stored.model().factorCovariance());
+        assertArrayEquals(served.model().exposures(), stored.model().exposures());
+        assertEquals(served.model().diagonalFactorCovariance(), stored.model().diagonalFactorCovariance());
+    }
+
     /** C_ii = sum_j B_ij^2 F_jj + d_i (design.md section 3). */
     private static double modelVariance(FitResult r, int i) {
         double v = r.model().specificVariance(i);
