@@ -119,26 +119,25 @@ final class JsonOut implements AutoCloseable {
         final byte[] padded;
 
         Name(String field) {
-            this(encode(field, true), field);
+            this(encode(field));
         }
 
-        private Name(byte[] bytes, String field) {
+        private Name(byte[] bytes) {
             this.bytes = bytes;
             this.padded = Arrays.copyOf(bytes, (bytes.length + 7) & ~7);
         }
 
         /** Raw bytes: constant JSON text between values (e.g. {@code ,"weight":}). */
         static Name raw(byte[] text) {
-            return new Name(text, null);
+            return new Name(text);
         }
 
-        /** {@code "field":} as {@link JsonOut#name(String)} writes it (or just {@code "field"} without the colon). */
-        static byte[] encode(String field, boolean colon) {
+        /** {@code "field":} as {@link JsonOut#name(String)} writes it. */
+        private static byte[] encode(String field) {
             try {
                 java.io.ByteArrayOutputStream b = new java.io.ByteArrayOutputStream();
                 try (JsonOut g = new JsonOut(b)) {
-                    if (colon) g.name(field);
-                    else g.string(field);
+                    g.name(field);
                 }
                 return b.toByteArray();
             } catch (IOException e) {
@@ -165,7 +164,6 @@ final class JsonOut implements AutoCloseable {
      * label and its numbers.
      */
     static final class RowShape {
-        private final String labelFieldName;
         private final String[] numberFieldNames;
         private final Name labelName;
         private final Name[] numberNames;
@@ -178,13 +176,8 @@ final class JsonOut implements AutoCloseable {
         private final int fixedBytes;
 
         RowShape(String labelField, String... numberFields) {
-            this(labelField, numberFields, new boolean[numberFields.length]);
-        }
-
-        private RowShape(String labelField, String[] numberFields, boolean[] recurring) {
-            this.recurring = recurring;
             if (numberFields.length == 0) throw new IllegalArgumentException("a row shape needs at least one number field");
-            labelFieldName = labelField;
+            recurring = new boolean[numberFields.length];
             numberFieldNames = numberFields.clone();
             labelName = new Name(labelField);
             numberNames = new Name[numberFields.length];
@@ -195,7 +188,7 @@ final class JsonOut implements AutoCloseable {
             fixed += h.length + 8;
             for (int j = 0; j < numberFields.length; j++) {
                 numberNames[j] = new Name(numberFields[j]);
-                byte[] b = concat(j == 0 ? new byte[] {'"', ','} : new byte[] {','}, numberNames[j].bytes, new byte[0]);
+                byte[] b = concat(j == 0 ? new byte[] {'"', ','} : new byte[] {','}, numberNames[j].bytes);
                 between[j] = Name.raw(b);
                 fixed += b.length + 8 + ShortestDouble.ROOM;
             }
@@ -207,27 +200,32 @@ final class JsonOut implements AutoCloseable {
          * property of the fit, not of the request): their renderings are remembered.
          */
         RowShape recurring(String field) {
-            String[] names = new String[numberNames.length];
-            boolean[] r = recurring.clone();
-            int found = -1;
-            for (int j = 0; j < names.length; j++) {
-                names[j] = numberFieldNames[j];
-                if (names[j].equals(field)) found = j;
-            }
-            if (found < 0) throw new IllegalArgumentException("no number field " + field);
-            r[found] = true;
-            return new RowShape(labelFieldName, names, r);
+            int j = Arrays.asList(numberFieldNames).indexOf(field);
+            if (j < 0) throw new IllegalArgumentException("no number field " + field);
+            RowShape marked = new RowShape(this);
+            marked.recurring[j] = true;
+            return marked;
+        }
+
+        /** A copy sharing the encoded text, with its own recurring flags. */
+        private RowShape(RowShape base) {
+            numberFieldNames = base.numberFieldNames;
+            labelName = base.labelName;
+            numberNames = base.numberNames;
+            head = base.head;
+            between = base.between;
+            recurring = base.recurring.clone();
+            fixedBytes = base.fixedBytes;
         }
 
         int numbers() {
             return numberNames.length;
         }
 
-        private static byte[] concat(byte[] a, byte[] b, byte[] c) {
-            byte[] r = Arrays.copyOf(a, a.length + b.length + c.length);
-            System.arraycopy(b, 0, r, a.length, b.length);
-            System.arraycopy(c, 0, r, a.length + b.length, c.length);
-            return r;
+        private static byte[] concat(byte[]... parts) {
+            java.io.ByteArrayOutputStream r = new java.io.ByteArrayOutputStream();
+            for (byte[] part : parts) r.writeBytes(part);
+            return r.toByteArray();
         }
     }
 
@@ -269,16 +267,12 @@ final class JsonOut implements AutoCloseable {
             if (!Double.isFinite(c[i])) return false;
         }
         room(shape.fixedBytes + len);
-        int start = pos;
-        int p = pos;
+        int p = pos; // pos moves only once the row is complete: returning false leaves nothing written
         if (comma[depth]) buf[p++] = ',';
         p = copyPadded(shape.head.padded, shape.head.bytes.length, buf, p);
         for (int c = 0; c < len; c++) {
             char ch = label.charAt(c);
-            if (ch >= 0x80 || ESCAPES[ch] != 0) {
-                pos = start;
-                return false;
-            }
+            if (ch >= 0x80 || ESCAPES[ch] != 0) return false;
             buf[p++] = (byte) ch;
         }
         for (int j = 0; j < columns.length; j++) {

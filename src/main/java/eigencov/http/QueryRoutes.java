@@ -182,14 +182,15 @@ public final class QueryRoutes implements RouteModule {
      */
     private static byte[] riskKey(RiskQuery q) {
         byte[] head = key("risk|" + scaleKey(q.scale()) + "|" + q.missing() + "|weights");
-        byte[] benchHead = key("|benchmark");
-        int size = head.length + keyBytes(q.weights()) + (q.benchmark() == null ? 0 : benchHead.length + keyBytes(q.benchmark()));
+        int size = head.length + keyBytes(q.weights()) + (q.benchmark() == null ? 0 : BENCHMARK_KEY.length + keyBytes(q.benchmark()));
         ByteBuffer b = ByteBuffer.allocate(size);
         b.put(head);
         putWeights(b, q.weights());
-        if (q.benchmark() != null) putWeights(b.put(benchHead), q.benchmark());
+        if (q.benchmark() != null) putWeights(b.put(BENCHMARK_KEY), q.benchmark());
         return b.array();
     }
+
+    private static final byte[] BENCHMARK_KEY = key("|benchmark");
 
     /** ",TICKER=" and eight bytes of weight per name. */
     private static int keyBytes(Weights w) {

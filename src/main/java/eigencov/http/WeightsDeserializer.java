@@ -13,7 +13,8 @@ import java.util.Arrays;
 /**
  * Reads a JSON object of ticker to weight ({@code {"AAA": 0.25, ...}}) straight into {@link Weights}:
  * names and numbers land in two arrays in request order, with no map node or boxed double per name.
- * A repeated ticker is caught by the parser (the query readers enable strict duplicate detection).
+ * A repeated ticker is refused by {@link eigencov.service.RiskQuery} (the risk body is read without the
+ * parser's duplicate detection, see {@link RiskBodyDeserializer}).
  * Number tokens are read directly; anything else (a quoted number, "NaN", a string, an array) goes
  * through Jackson's own {@code Double} rules, so what is accepted and the error named
  * {@code weights.TICKER} stay those of a {@code Map<String, Double>}. A null weight is kept as NaN

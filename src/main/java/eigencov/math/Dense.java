@@ -116,52 +116,60 @@ final class Dense {
 
     private static void rowDotsBlock(double[] a, int n, double[] b, int l, double[] c, int i0, int i1, int c0,
                                      int c1) {
-        if (Kernels.VECTOR) {
-            VectorKernels.rowDotsBlock(a, n, b, l, c, i0, i1, c0, c1);
-            return;
-        }
-        rowDotsBlockScalar(a, n, b, l, c, i0, i1, c0, c1);
+        rowDotsBlock(a, n, b, l, c, i0, i1, c0, c1, Kernels.VECTOR);
     }
 
-    static void rowDotsBlockScalar(double[] a, int n, double[] b, int l, double[] c, int i0, int i1, int c0,
-                                   int c1) {
+    /**
+     * Rows [i0, i1) of A against rows [c0, c1) of B, two rows of A by two of B at a time, with the vector
+     * or the scalar tile (tests compare the two).
+     */
+    static void rowDotsBlock(double[] a, int n, double[] b, int l, double[] c, int i0, int i1, int c0,
+                                     int c1, boolean vector) {
         int i = i0;
         for (; i + 1 < i1; i += 2) {
             int ao = i * n;
             int ao1 = ao + n;
             int j = c0;
             for (; j + 1 < c1; j += 2) {
-                int bo = j * n;
-                int bo1 = bo + n;
-                double s00 = 0;
-                double s01 = 0;
-                double s10 = 0;
-                double s11 = 0;
-                for (int t = 0; t < n; t++) {
-                    double x0 = a[ao + t];
-                    double x1 = a[ao1 + t];
-                    double y0 = b[bo + t];
-                    double y1 = b[bo1 + t];
-                    s00 += x0 * y0;
-                    s01 += x0 * y1;
-                    s10 += x1 * y0;
-                    s11 += x1 * y1;
+                if (vector) {
+                    VectorKernels.dots2x2(a, ao, ao1, b, j * n, j * n + n, n, c, i * l + j, (i + 1) * l + j);
+                } else {
+                    dots2x2(a, ao, ao1, b, j * n, j * n + n, n, c, i * l + j, (i + 1) * l + j);
                 }
-                c[i * l + j] = s00;
-                c[i * l + j + 1] = s01;
-                c[(i + 1) * l + j] = s10;
-                c[(i + 1) * l + j + 1] = s11;
             }
             for (; j < c1; j++) {
-                c[i * l + j] = dotScalar(a, ao, b, j * n, n);
-                c[(i + 1) * l + j] = dotScalar(a, ao1, b, j * n, n);
+                c[i * l + j] = vector ? VectorKernels.dot(a, ao, b, j * n, n) : dotScalar(a, ao, b, j * n, n);
+                c[(i + 1) * l + j] = vector ? VectorKernels.dot(a, ao1, b, j * n, n) : dotScalar(a, ao1, b, j * n, n);
             }
         }
         for (; i < i1; i++) {
             for (int j = c0; j < c1; j++) {
-                c[i * l + j] = dotScalar(a, i * n, b, j * n, n);
+                c[i * l + j] = vector ? VectorKernels.dot(a, i * n, b, j * n, n) : dotScalar(a, i * n, b, j * n, n);
             }
         }
+    }
+
+    /** c[o0], c[o0 + 1], c[o1], c[o1 + 1] = the dot products of rows (ao, ao1) of a with rows (bo, bo1) of b. */
+    private static void dots2x2(double[] a, int ao, int ao1, double[] b, int bo, int bo1, int n, double[] c, int o0,
+                                int o1) {
+        double s00 = 0;
+        double s01 = 0;
+        double s10 = 0;
+        double s11 = 0;
+        for (int t = 0; t < n; t++) {
+            double x0 = a[ao + t];
+            double x1 = a[ao1 + t];
+            double y0 = b[bo + t];
+            double y1 = b[bo1 + t];
+            s00 += x0 * y0;
+            s01 += x0 * y1;
+            s10 += x1 * y0;
+            s11 += x1 * y1;
+        }
+        c[o0] = s00;
+        c[o0 + 1] = s01;
+        c[o1] = s10;
+        c[o1 + 1] = s11;
     }
 
     /**

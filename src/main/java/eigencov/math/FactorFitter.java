@@ -248,7 +248,8 @@ public final class FactorFitter {
             }
         }
         if (options.rotate()) {
-            alignment = alignment.withRotation(ProcrustesAlignment.align(b, f, factorReturns, k, universe, previous, alignment));
+            alignment = alignment.withRotation(ProcrustesAlignment.align(b, f, factorReturns, k, universe, previous, alignment,
+                    par));
         }
         FactorModel model = new FactorModel(universe, k, b, f, specific);
         double[] share = new double[eigenvalues.length];

@@ -53,7 +53,7 @@ public record FactorHold(int fits, Integer previousK, int previousDisagreements)
         int k = ruleK;
         int disagreements = 0;
         if (previousK != null) {
-            int held = Math.max(1, Math.min(previousK, Math.min(rank, cap(rule, rank))));
+            int held = Math.max(1, Math.min(previousK, cap(rule, rank)));
             if (held != ruleK) {
                 disagreements = previousDisagreements + 1;
                 if (disagreements < fits) {
@@ -70,10 +70,11 @@ public record FactorHold(int fits, Integer previousK, int previousDisagreements)
         return new FactorCountReport(count.rule(), k, count.unclipped(), count.criterion(), count.firstK(), count.values(), p);
     }
 
+    /** Most factors the rule may give: the rank, or less when the rule has a maximum. */
     private static int cap(FactorRule rule, int rank) {
-        if (rule instanceof FactorRule.BaiNg b) return b.max();
-        if (rule instanceof FactorRule.EigenvalueRatio e) return e.max();
-        if (rule instanceof FactorRule.Fixed f) return f.count();
+        if (rule instanceof FactorRule.BaiNg b) return Math.min(rank, b.max());
+        if (rule instanceof FactorRule.EigenvalueRatio e) return Math.min(rank, e.max());
+        if (rule instanceof FactorRule.Fixed f) return Math.min(rank, f.count());
         return rank;
     }
 }

@@ -25,11 +25,12 @@ final class ProcrustesAlignment {
     }
 
     /**
-     * Rotates {@code b} (K x k exposures), {@code f} (k x k factor covariance) and {@code returns}
-     * (T x k factor returns) in place when the conditions hold, and reports what it did.
+     * Rotates {@code b} (K x k exposures), {@code f} (k x k factor covariance, diagonal: the fit's
+     * eigenvalues) and {@code returns} (T x k factor returns) in place when the conditions hold, and
+     * reports what it did.
      */
     static Rotation align(double[] b, double[] f, double[] returns, int k, List<String> universe, FactorModel previous,
-                          AlignmentReport signs) {
+                          AlignmentReport signs, Parallel par) {
         if (previous == null) return Rotation.skipped("first fit");
         if (previous.factors() != k) return Rotation.skipped("k changed from " + previous.factors() + " to " + k);
         if (signs.commonTickers() < k) return Rotation.skipped(signs.commonTickers() + " common tickers, fewer than the " + k + " factors");
@@ -49,10 +50,15 @@ final class ProcrustesAlignment {
             }
         }
         double[] r = rotation(m, k);
-        rotateRows(b, n, k, r);
-        rotateRows(returns, returns.length / k, k, r);
-        double[] rotatedF = congruence(f, k, r);
-        System.arraycopy(rotatedF, 0, f, 0, f.length);
+        rotateRows(b, n, k, r, par);
+        rotateRows(returns, returns.length / k, k, r, par);
+        // R' F R = G' G with G = F^(1/2) R (F diagonal and non-negative): symmetric by construction
+        double[] g = new double[k * k];
+        for (int j = 0; j < k; j++) {
+            double sd = Math.sqrt(f[j * k + j]);
+            for (int c = 0; c < k; c++) g[j * k + c] = sd * r[j * k + c];
+        }
+        Dense.crossProduct(g, k, k, f, par);
         return new Rotation(true, "aligned to the previous fit", r);
     }
 
@@ -71,45 +77,10 @@ final class ProcrustesAlignment {
         return out;
     }
 
-    /** x (rows x k) <- x R, row by row. */
-    private static void rotateRows(double[] x, int rows, int k, double[] r) {
-        double[] row = new double[k];
-        for (int t = 0; t < rows; t++) {
-            int o = t * k;
-            System.arraycopy(x, o, row, 0, k);
-            for (int c = 0; c < k; c++) {
-                double s = 0;
-                for (int a = 0; a < k; a++) s += row[a] * r[a * k + c];
-                x[o + c] = s;
-            }
-        }
-    }
-
-    /** R' F R, symmetrised (rounding would otherwise leave it asymmetric in the last bits). */
-    private static double[] congruence(double[] f, int k, double[] r) {
-        double[] fr = new double[k * k]; // F R
-        for (int a = 0; a < k; a++) {
-            for (int c = 0; c < k; c++) {
-                double s = 0;
-                for (int j = 0; j < k; j++) s += f[a * k + j] * r[j * k + c];
-                fr[a * k + c] = s;
-            }
-        }
-        double[] out = new double[k * k];
-        for (int a = 0; a < k; a++) {
-            for (int c = 0; c < k; c++) {
-                double s = 0;
-                for (int j = 0; j < k; j++) s += r[j * k + a] * fr[j * k + c];
-                out[a * k + c] = s;
-            }
-        }
-        for (int a = 0; a < k; a++) {
-            for (int c = a + 1; c < k; c++) {
-                double s = 0.5 * (out[a * k + c] + out[c * k + a]);
-                out[a * k + c] = s;
-                out[c * k + a] = s;
-            }
-        }
-        return out;
+    /** x (rows x k) <- x R. */
+    private static void rotateRows(double[] x, int rows, int k, double[] r, Parallel par) {
+        double[] out = new double[x.length];
+        Dense.leftMultiply(x, rows, r, k, k, out, par);
+        System.arraycopy(out, 0, x, 0, x.length);
     }
 }

@@ -209,36 +209,12 @@ final class VectorKernels {
     }
 
     /**
-     * C = A B' (A r x n, B l x n, row-major): rows [i0, i1) of A against rows [j0, j1) of B, two rows of A by
-     * two of B at a time (four vector accumulators), lanes summed at the end.
-     */
-    static void rowDotsBlock(double[] a, int n, double[] b, int l, double[] c, int i0, int i1, int j0, int j1) {
-        int i = i0;
-        for (; i + 1 < i1; i += 2) {
-            int ao = i * n;
-            int ao1 = ao + n;
-            int j = j0;
-            for (; j + 1 < j1; j += 2) {
-                dots2x2(a, ao, ao1, b, j * n, j * n + n, n, c, i * l + j, (i + 1) * l + j);
-            }
-            for (; j < j1; j++) {
-                c[i * l + j] = dot(a, ao, b, j * n, n);
-                c[(i + 1) * l + j] = dot(a, ao1, b, j * n, n);
-            }
-        }
-        for (; i < i1; i++) {
-            for (int j = j0; j < j1; j++) {
-                c[i * l + j] = dot(a, i * n, b, j * n, n);
-            }
-        }
-    }
-
-    /**
      * c[o0], c[o0 + 1], c[o1], c[o1 + 1] = the dot products of rows (ao, ao1) of a with rows (bo, bo1) of b.
-     * A method of its own, called once per pair of pairs, so that C2 compiles it whole and keeps the
-     * accumulators in registers (a loop first compiled by on-stack replacement boxes live vectors).
+     * The tile of {@link Dense#rowDots}; a method of its own, called once per pair of pairs, so that C2
+     * compiles it whole and keeps the accumulators in registers (a loop first compiled by on-stack
+     * replacement boxes live vectors).
      */
-    private static void dots2x2(double[] a, int ao, int ao1, double[] b, int bo, int bo1, int n, double[] c, int o0,
+    static void dots2x2(double[] a, int ao, int ao1, double[] b, int bo, int bo1, int n, double[] c, int o0,
                                 int o1) {
         DoubleVector s00 = DoubleVector.zero(S);
         DoubleVector s01 = s00;

@@ -76,15 +76,11 @@ public final class QueryService {
     /** Risk of a portfolio, with tracking error when a benchmark is given. */
     public RiskAnswer risk(String model, FitSelector selector, RiskQuery q) {
         ServedFit served = resolve(model, selector);
-        List<String> names = q.weights().tickers();
-        TickerSelection sel = TickerSelection.of(served.result(), names, i -> "weights." + names.get(i));
+        TickerSelection sel = select(served, q.weights(), "weights");
         List<InvalidInputException.Issue> issues = new ArrayList<>(sel.issues());
         TickerSelection bench = null;
-        List<String> benchNames = null;
         if (q.benchmark() != null) {
-            benchNames = q.benchmark().tickers();
-            List<String> bn = benchNames;
-            bench = TickerSelection.of(served.result(), bn, i -> "benchmark." + bn.get(i));
+            bench = select(served, q.benchmark(), "benchmark");
             issues.addAll(bench.issues());
         }
         if (q.missing() == MissingTickers.ERROR && !issues.isEmpty()) throw uncovered(served, issues);
@@ -148,6 +144,11 @@ public final class QueryService {
         double[] f = m.factorCovariance();
         for (int p = 0; p < f.length; p++) f[p] *= s;
         return new FactorForm(served.ref(), sel.kept(), sel.omitted(), scale, k, b, f, d);
+    }
+
+    /** The weights' tickers matched against the fit; an uncovered one is named {@code field.TICKER}. */
+    private static TickerSelection select(ServedFit served, Weights w, String field) {
+        return TickerSelection.of(served.result(), w.tickers(), i -> field + "." + w.ticker(i));
     }
 
     private static double[] weightsOf(Weights weights, TickerSelection sel) {

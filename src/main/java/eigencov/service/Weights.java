@@ -1,10 +1,9 @@
 package eigencov.service;
 
-import java.util.AbstractList;
 import java.util.Arrays;
+import java.util.Collections;
 import java.util.List;
 import java.util.Map;
-import java.util.RandomAccess;
 
 /**
  * Portfolio (or benchmark) weights in request order: ticker i holds weight i. Immutable; the
@@ -15,7 +14,6 @@ import java.util.RandomAccess;
 public final class Weights {
     private final String[] tickers;
     private final double[] values;
-    private final List<String> tickerList;
 
     /**
      * @param tickers names in request order (validity is checked by {@link RiskQuery})
@@ -28,7 +26,6 @@ public final class Weights {
         }
         this.tickers = Arrays.copyOf(tickers, count);
         this.values = Arrays.copyOf(values, count);
-        this.tickerList = new TickerList(this.tickers);
     }
 
     /** Weights from a map, in its iteration order (a LinkedHashMap keeps the caller's order); a null value counts as missing. */
@@ -80,25 +77,6 @@ public final class Weights {
 
     /** The tickers in request order, as an unmodifiable view. */
     public List<String> tickers() {
-        return tickerList;
-    }
-
-    /** Unmodifiable, copy-free view of the ticker array. */
-    private static final class TickerList extends AbstractList<String> implements RandomAccess {
-        private final String[] a;
-
-        TickerList(String[] a) {
-            this.a = a;
-        }
-
-        @Override
-        public String get(int index) {
-            return a[index];
-        }
-
-        @Override
-        public int size() {
-            return a.length;
-        }
+        return Collections.unmodifiableList(Arrays.asList(tickers));
     }
 }

@@ -53,8 +53,8 @@ class KernelsTest {
             int l = Math.min(rows, 5);
             double[] cv = new double[rows * l];
             double[] cs = new double[rows * l];
-            VectorKernels.rowDotsBlock(m, cols, m, l, cv, 0, rows, 0, l);
-            Dense.rowDotsBlockScalar(m, cols, m, l, cs, 0, rows, 0, l);
+            Dense.rowDotsBlock(m, cols, m, l, cv, 0, rows, 0, l, true);
+            Dense.rowDotsBlock(m, cols, m, l, cs, 0, rows, 0, l, false);
             for (int x = 0; x < cv.length; x++) {
                 assertEquals(cs[x], cv[x], 1e-13 * cols * (1 + Math.abs(cs[x])), "A B' " + x);
             }
