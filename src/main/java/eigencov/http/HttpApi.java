@@ -154,9 +154,11 @@ public final class HttpApi {
             config.routes.exception(ConflictException.class, (e, ctx) -> problem(ctx,
                     new ApiException(409, "conflict", "Conflict", e.getMessage(), List.of())));
             config.routes.exception(UnavailableException.class, (e, ctx) -> unavailable(ctx, e.getMessage()));
-            config.routes.exception(JsonProcessingException.class, (e, ctx) -> problem(ctx,
-                    ApiException.badRequest("request body is not valid JSON for this endpoint: " + e.getOriginalMessage(),
-                            List.of(FieldError.field(jsonPath(e), e.getOriginalMessage())))));
+            config.routes.exception(JsonProcessingException.class, (e, ctx) -> {
+                String what = JsonErrors.describe(e);
+                problem(ctx, ApiException.badRequest("request body is not valid JSON for this endpoint: " + what,
+                        List.of(FieldError.field(jsonPath(e), what))));
+            });
             config.routes.exception(HttpResponseException.class, (e, ctx) -> problem(ctx,
                     new ApiException(e.getStatus() >= 400 ? e.getStatus() : 500, slug(e.getStatus()), titleOf(e.getStatus()),
                             e.getMessage(), List.of())));

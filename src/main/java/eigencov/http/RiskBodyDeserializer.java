@@ -26,6 +26,12 @@ final class RiskBodyDeserializer extends StdDeserializer<QueryRoutes.RiskBody> {
         super(QueryRoutes.RiskBody.class);
     }
 
+    /** Named in the problem of an unknown field. */
+    @Override
+    public java.util.Collection<Object> getKnownPropertyNames() {
+        return java.util.List.of("weights", "benchmark", "scale", "horizonDays");
+    }
+
     @Override
     public QueryRoutes.RiskBody deserialize(JsonParser p, DeserializationContext ctxt) throws IOException {
         if (!p.isExpectedStartObjectToken()) return (QueryRoutes.RiskBody) ctxt.handleUnexpectedToken(QueryRoutes.RiskBody.class, p);

@@ -7,6 +7,7 @@ import io.restassured.response.Response;
 import io.restassured.specification.RequestSpecification;
 import org.junit.jupiter.api.AfterAll;
 import org.junit.jupiter.api.BeforeAll;
+import org.junit.jupiter.api.Test;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.MethodSource;
 
@@ -125,6 +126,20 @@ class QueryErrorsTest {
                 post("risk with unknown ticker", RISK, "{\"weights\":{\"T0001\":1,\"NOPE\":1}}", 422, "unknown-tickers", "weights.NOPE"));
     }
 
+    @Test
+    void body_problems_name_the_json_that_was_expected() {
+        JsonNode unknown = json(given().contentType("application/json").body("{\"weights\":{\"T0001\":1},\"colour\":1}").post(RISK));
+        assertEquals("unknown field 'colour'; the fields are benchmark, horizonDays, scale, weights",
+                unknown.get("errors").get(0).get("message").asText());
+        JsonNode list = json(given().contentType("application/json").body("[]").post(COV));
+        assertEquals("expected an object, found an array", list.get("errors").get(0).get("message").asText());
+        JsonNode fraction = json(given().contentType("application/json").body("{\"weights\":{\"T0001\":1},\"horizonDays\":2.5}").post(RISK));
+        assertEquals("expected a whole number, found 2.5", fraction.get("errors").get(0).get("message").asText());
+        JsonNode text = json(given().contentType("application/json").body("{\"weights\":{\"T0001\":\"half\"}}").post(RISK));
+        assertEquals("weights.T0001", text.get("errors").get(0).get("field").asText());
+        assertFalse(text.get("errors").get(0).get("message").asText().isBlank());
+    }
+
     @ParameterizedTest(name = "{0}")
     @MethodSource("badRequests")
     void bad_query_input_is_a_problem_naming_the_field(Bad bad) {
@@ -137,6 +152,8 @@ class QueryErrorsTest {
         assertEquals(bad.status(), p.get("status").asInt());
         assertEquals("/problems/" + bad.type(), p.get("type").asText());
         assertFalse(p.get("detail").asText().isBlank());
+        // problems speak JSON, not Java: no class names a client could not act on
+        assertFalse(p.toString().matches("(?s).*(eigencov\\.|java\\.|JsonToken).*"), "Java names in " + p);
         if (bad.field() != null) {
             List<String> fields = new ArrayList<>();
             p.get("errors").forEach(e -> fields.add(e.path("field").asText()));
