@@ -89,7 +89,7 @@ public final class RiskCalculator {
      * Copies the lower triangle of the n x n row-major {@code m} onto the upper one, tile by tile so
      * that the column-wise writes stay in cache. Modifies {@code m}.
      */
-    private static void mirrorLowerTriangle(double[] m, int n) {
+    static void mirrorLowerTriangle(double[] m, int n) {
         for (int ab = 0; ab < n; ab += MIRROR_TILE) {
             int aEnd = Math.min(ab + MIRROR_TILE, n);
             for (int cb = 0; cb <= ab; cb += MIRROR_TILE) {
