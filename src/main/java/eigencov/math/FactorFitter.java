@@ -9,8 +9,9 @@ import java.util.concurrent.ExecutorService;
 /**
  * Fits a statistical factor model to one window (design.md section 3): coverage filter,
  * weights, EM-PCA imputation of gaps, exact principal components (Gram route when K > T),
- * factor-count rule, specific variances with floor, factor returns, sign alignment.
- * Stateless apart from the executor; safe to share between threads.
+ * factor-count rule, specific variances with floor, factor returns, sign alignment; then, when
+ * the options ask for them, short-history names ({@link ShortHistoryFit}, a separate step on the
+ * finished fit). Stateless apart from the executor; safe to share between threads.
  */
 public final class FactorFitter {
 
@@ -257,8 +258,9 @@ public final class FactorFitter {
             share[j] = eigenvalues[j] / trace;
         }
         List<LocalDate> used = window.dates();
-        return new FitResult(model, used, eigenvalues, share, mean, factorReturns, excluded, count, imputation,
-                alignment, tEff, System.nanoTime() - start, pca.rank(), trace, options.basis());
+        FitResult main = new FitResult(model, used, eigenvalues, share, mean, factorReturns, excluded, count, imputation,
+                alignment, tEff, System.nanoTime() - start, pca.rank(), trace, options.basis(), variance, ShortHistory.NONE);
+        return ShortHistoryFit.extend(main, window, options);
     }
 
     /** Observations a ticker needs: ceil(minCoverage * T), at least 1 (the 1e-9 absorbs rounding of minCoverage * T). */

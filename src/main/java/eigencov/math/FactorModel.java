@@ -80,6 +80,44 @@ public record FactorModel(List<String> tickers, int factors, double[] exposures,
         index = Collections.unmodifiableMap(m);
     }
 
+    /**
+     * This model with more rows: {@code tickers} (none already here) with exposures (n x k row-major)
+     * and specific variances, after the existing ones; same factor covariance.
+     */
+    public FactorModel withRows(List<String> more, double[] moreExposures, double[] moreSpecific) {
+        int n = tickers.size();
+        if (moreExposures.length != (long) more.size() * factors || moreSpecific.length != more.size()) {
+            throw new IllegalArgumentException("rows to add do not match " + more.size() + " tickers x " + factors + " factors");
+        }
+        List<String> t = new java.util.ArrayList<>(n + more.size());
+        t.addAll(tickers);
+        t.addAll(more);
+        double[] b = Arrays.copyOf(exposures, exposures.length + moreExposures.length);
+        System.arraycopy(moreExposures, 0, b, exposures.length, moreExposures.length);
+        double[] d = Arrays.copyOf(specificVariances, n + moreSpecific.length);
+        System.arraycopy(moreSpecific, 0, d, n, moreSpecific.length);
+        return new FactorModel(t, factors, b, factorCovariance, d);
+    }
+
+    /** The model variance {@code C_ii = (B F B')_ii + D_ii} of every row. O(K k^2). */
+    public double[] diagonal() {
+        int k = factors;
+        double[] out = new double[tickers.size()];
+        for (int i = 0; i < out.length; i++) {
+            int o = i * k;
+            double s = 0;
+            for (int a = 0; a < k; a++) {
+                double fb = 0;
+                for (int b = 0; b < k; b++) {
+                    fb += factorCovariance[a * k + b] * exposures[o + b];
+                }
+                s += exposures[o + a] * fb;
+            }
+            out[i] = s + specificVariances[i];
+        }
+        return out;
+    }
+
     /** Number of tickers K. */
     public int size() {
         return tickers.size();

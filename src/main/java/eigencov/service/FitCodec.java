@@ -39,7 +39,7 @@ public final class FitCodec {
         try {
             String reports = mapper.writeValueAsString(reports(r));
             return new FitData(m.tickers(), r.dates(), m.factors(), m.exposures(), m.factorCovariance(), m.specificVariances(),
-                    r.eigenvalues(), r.varianceShare(), r.means(), r.factorReturns(), reports);
+                    r.eigenvalues(), r.varianceShare(), r.means(), r.factorReturns(), reports, r.variances(), r.shortHistory());
         } catch (JsonProcessingException e) {
             throw new IllegalStateException("cannot write fit reports as JSON: " + e.getOriginalMessage(), e);
         }
@@ -53,9 +53,11 @@ public final class FitCodec {
             throw new StoreException("stored fit reports cannot be read: " + e.getOriginalMessage(), e);
         }
         FactorModel m = new FactorModel(d.universe(), d.factors(), d.exposures(), d.factorCovariance(), d.specificVariances());
+        // a fit stored before the variances were kept: the model's diagonal, equal to S_ii wherever the floor is inactive
+        double[] variances = d.variances() != null ? d.variances() : m.diagonal();
         return new FitResult(m, d.dates(), d.eigenvalues(), d.varianceShare(), d.means(), d.factorReturns(), rep.excluded(),
                 rep.factorCount(), rep.imputation(), rep.alignment(), rep.effectiveObservations(), rep.computeNanos(), rep.rank(),
-                rep.totalVariance(), rep.basis());
+                rep.totalVariance(), rep.basis(), variances, d.shortHistory());
     }
 
     public static Reports reports(FitResult r) {

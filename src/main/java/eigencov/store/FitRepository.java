@@ -1,5 +1,7 @@
 package eigencov.store;
 
+import eigencov.math.ShortHistory;
+
 import javax.sql.DataSource;
 import java.sql.Connection;
 import java.sql.Date;
@@ -55,8 +57,9 @@ public final class FitRepository {
             try {
                 long id = insertRow(c, a, FitRow.OK, null, f);
                 try (PreparedStatement p = c.prepareStatement("INSERT INTO fit_data (fit_id, universe, window_dates, exposures, "
-                        + "factor_covariance, specific_variances, eigenvalues, variance_share, means, factor_returns, reports_json) "
-                        + "VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)")) {
+                        + "factor_covariance, specific_variances, eigenvalues, variance_share, means, factor_returns, reports_json, "
+                        + "variances, short_history_tickers, short_history_observations, short_history_exposures, "
+                        + "short_history_specific) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)")) {
                     p.setLong(1, id);
                     p.setString(2, String.join("\n", d.universe()));
                     p.setString(3, joinDates(d.dates()));
@@ -68,6 +71,12 @@ public final class FitRepository {
                     p.setBytes(9, Float64Blob.encode(d.means()));
                     p.setBytes(10, Float64Blob.encode(d.factorReturns()));
                     p.setString(11, d.reportsJson());
+                    p.setBytes(12, d.variances() == null ? null : Float64Blob.encode(d.variances()));
+                    ShortHistory sh = d.shortHistory();
+                    p.setString(13, String.join("\n", sh.tickers()));
+                    p.setBytes(14, Int32Blob.encode(sh.observations(), sh.size()));
+                    p.setBytes(15, Float64Blob.encode(sh.exposures()));
+                    p.setBytes(16, Float64Blob.encode(sh.specificVariances()));
                     p.executeUpdate();
                 }
                 long storeMs = (System.nanoTime() - start) / 1_000_000;
@@ -189,17 +198,19 @@ public final class FitRepository {
     public Optional<FitData> data(long fitId) {
         try (Connection c = ds.getConnection();
              PreparedStatement p = c.prepareStatement("SELECT d.universe, d.window_dates, f.factors, d.exposures, d.factor_covariance, "
-                     + "d.specific_variances, d.eigenvalues, d.variance_share, d.means, d.factor_returns, d.reports_json "
-                     + "FROM fit_data d JOIN fit f ON f.id = d.fit_id WHERE d.fit_id = ?")) {
+                     + "d.specific_variances, d.eigenvalues, d.variance_share, d.means, d.factor_returns, d.reports_json, "
+                     + "d.variances, d.short_history_tickers, d.short_history_observations, d.short_history_exposures, "
+                     + "d.short_history_specific FROM fit_data d JOIN fit f ON f.id = d.fit_id WHERE d.fit_id = ?")) {
             p.setLong(1, fitId);
             try (ResultSet rs = p.executeQuery()) {
                 if (!rs.next()) return Optional.empty();
-                String universe = rs.getString(1);
-                return Optional.of(new FitData(universe.isEmpty() ? List.of() : Arrays.asList(universe.split("\n")),
-                        splitDates(rs.getString(2)), rs.getInt(3), Float64Blob.decode(rs.getBytes(4)),
-                        Float64Blob.decode(rs.getBytes(5)), Float64Blob.decode(rs.getBytes(6)), Float64Blob.decode(rs.getBytes(7)),
-                        Float64Blob.decode(rs.getBytes(8)), Float64Blob.decode(rs.getBytes(9)), Float64Blob.decode(rs.getBytes(10)),
-                        rs.getString(11)));
+                int factors = rs.getInt(3);
+                byte[] variances = rs.getBytes(12);
+                return Optional.of(new FitData(lines(rs.getString(1)), splitDates(rs.getString(2)), factors,
+                        Float64Blob.decode(rs.getBytes(4)), Float64Blob.decode(rs.getBytes(5)), Float64Blob.decode(rs.getBytes(6)),
+                        Float64Blob.decode(rs.getBytes(7)), Float64Blob.decode(rs.getBytes(8)), Float64Blob.decode(rs.getBytes(9)),
+                        Float64Blob.decode(rs.getBytes(10)), rs.getString(11), variances == null ? null : Float64Blob.decode(variances),
+                        shortHistory(rs, factors)));
             }
         } catch (SQLException e) {
             throw new StoreException("cannot read fit " + fitId + ": " + e.getMessage(), e);
@@ -233,6 +244,22 @@ public final class FitRepository {
             }
         }
         return out;
+    }
+
+    /** Columns 13-16: the short-history names, none when NULL (a fit stored before V4) or empty. */
+    private static ShortHistory shortHistory(ResultSet rs, int factors) throws SQLException {
+        List<String> tickers = lines(rs.getString(13));
+        if (tickers.isEmpty()) return ShortHistory.NONE;
+        byte[] obs = rs.getBytes(14);
+        int[] observations = new int[Int32Blob.length(obs)];
+        Int32Blob.decode(obs, observations);
+        return new ShortHistory(tickers, observations, factors, Float64Blob.decode(rs.getBytes(15)),
+                Float64Blob.decode(rs.getBytes(16)));
+    }
+
+    /** A newline-joined list; empty for null or "". */
+    private static List<String> lines(String joined) {
+        return joined == null || joined.isEmpty() ? List.of() : Arrays.asList(joined.split("\n"));
     }
 
     private static String joinDates(List<LocalDate> dates) {
