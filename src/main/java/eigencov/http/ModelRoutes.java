@@ -1,5 +1,7 @@
 package eigencov.http;
 
+import com.fasterxml.jackson.databind.DeserializationFeature;
+import com.fasterxml.jackson.databind.ObjectReader;
 import eigencov.service.FitService;
 import eigencov.service.InvalidInputException;
 import eigencov.service.ModelService;
@@ -7,6 +9,7 @@ import eigencov.service.ModelSpec;
 import io.javalin.config.RoutesConfig;
 import io.javalin.http.Context;
 
+import java.io.IOException;
 import java.time.LocalDate;
 import java.util.Map;
 
@@ -15,6 +18,12 @@ import java.util.Map;
  * {@code POST/GET /v1/models/{model}/fits}, {@code GET /v1/models/{model}/fits/{id}}.
  */
 public final class ModelRoutes implements RouteModule {
+    /**
+     * Specs are read strictly: a fraction where a whole number belongs (windowDays, factors.count,
+     * shortHistory.minObservations) is a 400 naming the field, not silently truncated.
+     */
+    private static final ObjectReader SPEC_READER = HttpApi.objectMapper().readerFor(ModelSpec.class)
+            .without(DeserializationFeature.ACCEPT_FLOAT_AS_INT);
     private final ModelService models;
     private final FitService fits;
 
@@ -41,9 +50,10 @@ public final class ModelRoutes implements RouteModule {
         routes.get("/v1/models/{model}/fits/{id}", ctx -> ctx.json(fits.get(ctx.pathParam("model"), fitId(ctx))));
     }
 
-    private void put(Context ctx) {
+    private void put(Context ctx) throws IOException {
         if (ctx.body().isBlank()) throw InvalidInputException.field("body", "a model spec is required");
-        ModelService.PutResult r = models.put(ctx.pathParam("model"), ctx.bodyAsClass(ModelSpec.class));
+        // a JsonProcessingException goes to HttpApi's mapper: 400 naming the JSON path
+        ModelService.PutResult r = models.put(ctx.pathParam("model"), SPEC_READER.readValue(ctx.body()));
         ctx.status(r.created() ? 201 : 200).json(r.model());
     }
 

@@ -8,6 +8,9 @@ import eigencov.service.FactorForm;
 import eigencov.service.FactorReturnSeries;
 import eigencov.service.FactorSpectrum;
 import eigencov.service.FitRef;
+import eigencov.service.MatrixAnswer;
+import eigencov.service.MinimumVarianceAnswer;
+import eigencov.service.PrecisionMatrix;
 import eigencov.service.RiskAnswer;
 import eigencov.service.Scale;
 import io.javalin.http.Context;
@@ -31,12 +34,13 @@ import java.util.List;
  * <p>Formats: JSON matrices are arrays of rows. CSV has a header row; a covariance matrix's first
  * column is the ticker. {@code .npy} rows follow the answered tickers (or dates), listed in the
  * {@code X-Tickers} (or {@code X-Dates}) header; requested tickers left out under missing=omit are
- * in {@code X-Omitted} for CSV and {@code .npy}, and in {@code "omitted"} for JSON.
+ * in {@code X-Omitted} for CSV and {@code .npy}, and in {@code "omitted"} for JSON; answered tickers
+ * that are short-history names of the fit likewise in {@code X-Short-History} and {@code "shortHistory"}.
  */
 final class QueryResponses {
     /** A portfolio's per-asset rows; an asset's beta to the first factor is a property of the fit, so it recurs. */
     private static final JsonOut.RowShape ASSET_ROW = new JsonOut.RowShape("ticker",
-            "weight", "marginal", "contribution", "specificContribution", "betaToFirstFactor").recurring("betaToFirstFactor");
+            "weight", "marginal", "contribution", "specificContribution", "beta").recurring("beta");
     /** Per-asset rows of the active (tracking error) decomposition. */
     private static final JsonOut.RowShape ACTIVE_ROW = new JsonOut.RowShape("ticker",
             "activeWeight", "marginal", "contribution", "specificContribution");
@@ -45,34 +49,52 @@ final class QueryResponses {
     private static final int BYTES_PER_NUMBER = 22;
 
     void covarianceMatrix(Context ctx, Representation rep, CovarianceMatrix a, byte[] key) {
-        int n = a.tickers().size();
+        squareMatrix(ctx, rep, key, a, g -> {
+            g.string("form", "matrix");
+            writeScale(g, a.scale());
+            g.bool("correlation", a.correlation());
+        });
+    }
+
+    /** The inverse: as a covariance matrix, without form and correlation. */
+    void precision(Context ctx, Representation rep, PrecisionMatrix a, byte[] key) {
+        squareMatrix(ctx, rep, key, a, g -> writeScale(g, a.scale()));
+    }
+
+    /**
+     * An n x n matrix over the answered tickers: JSON {@code head}, tickers, omitted, shortHistory and the
+     * rows; CSV with a ticker column; {@code .npy} with the order in {@code X-Tickers}.
+     */
+    private static void squareMatrix(Context ctx, Representation rep, byte[] key, MatrixAnswer a, JsonFields head) {
+        List<String> tickers = a.tickers();
+        int n = tickers.size();
         DoubleBuffer m = a.matrixView();
         long size = (long) n * n * BYTES_PER_NUMBER;
         switch (rep) {
             case JSON -> json(ctx, a.fit(), key, size, g -> {
-                g.string("form", "matrix");
-                writeScale(g, a.scale());
-                g.bool("correlation", a.correlation());
-                g.strings("tickers", a.tickers());
+                head.write(g);
+                g.strings("tickers", tickers);
                 g.strings("omitted", a.omitted());
+                g.strings("shortHistory", a.shortHistory());
                 g.symmetricRows("matrix", m, n);
             });
             case CSV -> {
-                omittedHeader(ctx, a.omitted());
-                double[] values = a.matrix();
+                listHeaders(ctx, a.omitted(), a.shortHistory());
                 csv(ctx, a.fit(), key, size, w -> {
                     w.write("ticker");
-                    for (String t : a.tickers()) w.append(',').write(t);
+                    for (String t : tickers) w.append(',').write(t);
                     w.write('\n');
+                    double[] row = new double[n];
                     for (int r = 0; r < n; r++) {
-                        w.write(a.tickers().get(r));
-                        csvRow(w, values, r * n, n);
+                        m.get(r * n, row, 0, n);
+                        w.write(tickers.get(r));
+                        csvRow(w, row, 0, n);
                     }
                 });
             }
             case NPY -> {
-                ResponseSender.listHeader(ctx, "X-Tickers", a.tickers());
-                omittedHeader(ctx, a.omitted());
+                ResponseSender.listHeader(ctx, "X-Tickers", tickers);
+                listHeaders(ctx, a.omitted(), a.shortHistory());
                 ResponseSender.sendBinary(ctx, a.fit(), rep, key, Npy.length(n, n), out -> Npy.write(out, n, n, m));
             }
         }
@@ -87,6 +109,7 @@ final class QueryResponses {
             g.number("factors", k);
             g.strings("tickers", a.tickers());
             g.strings("omitted", a.omitted());
+            g.strings("shortHistory", a.shortHistory());
             g.rows("exposures", a.exposures(), n, k);
             g.rows("factorCovariance", a.factorCovariance(), k, k);
             g.numbers("specificVariance", a.specificVariance());
@@ -94,9 +117,9 @@ final class QueryResponses {
     }
 
     /**
-     * Exposures: JSON {@code exposures} (n x k) and {@code specificVariance}; CSV columns
-     * {@code ticker,f1..fk,specificVariance}; {@code .npy} an n x (k+1) matrix whose last column is
-     * the specific variance (columns named in {@code X-Columns}).
+     * Exposures: JSON {@code exposures} (n x k), {@code specificVariance} and {@code beta} (to the first
+     * factor); CSV columns {@code ticker,f1..fk,specificVariance}; {@code .npy} an n x (k+1) matrix whose last
+     * column is the specific variance (columns named in {@code X-Columns}).
      */
     void exposures(Context ctx, Representation rep, FactorForm a, byte[] key) {
         int n = a.tickers().size();
@@ -109,11 +132,13 @@ final class QueryResponses {
                 g.number("factors", k);
                 g.strings("tickers", a.tickers());
                 g.strings("omitted", a.omitted());
+                g.strings("shortHistory", a.shortHistory());
                 g.rows("exposures", b, n, k);
                 g.numbers("specificVariance", d);
+                g.numbers("beta", a.betas());
             });
             case CSV -> {
-                omittedHeader(ctx, a.omitted());
+                listHeaders(ctx, a.omitted(), a.shortHistory());
                 csv(ctx, a.fit(), key, size, w -> {
                     w.write("ticker," + String.join(",", factorColumns(k)) + ",specificVariance\n");
                     double[] row = new double[k + 1];
@@ -135,7 +160,7 @@ final class QueryResponses {
                 columns.add("specificVariance");
                 ctx.header("X-Columns", String.join(",", columns));
                 ResponseSender.listHeader(ctx, "X-Tickers", a.tickers());
-                omittedHeader(ctx, a.omitted());
+                listHeaders(ctx, a.omitted(), a.shortHistory());
                 ResponseSender.sendBinary(ctx, a.fit(), rep, key, Npy.length(n, k + 1), o -> Npy.write(o, n, k + 1, out));
             }
         }
@@ -190,14 +215,32 @@ final class QueryResponses {
             g.number("factorVariance", r.factorVariance());
             g.number("specificVariance", r.specificVariance());
             if (r.trackingError() != null) g.number("trackingError", r.trackingError());
-            g.number("betaToFirstFactor", r.betaToFirstFactor());
+            g.number("beta", r.beta());
             byFactor(g, r.factorExposures(), r.factorContributions());
             double[] specific = r.specificContributions();
             g.number("specificContribution", sum(specific));
             g.shapedRows("byAsset", ASSET_ROW, a.tickers(), a.weights(), r.marginal(), r.contribution(), specific,
-                    r.assetBetasToFirstFactor());
+                    r.assetBetas());
             if (r.active() != null) active(g, r.active(), a.activeTickers());
             g.strings("omitted", a.omitted());
+            g.strings("shortHistory", a.shortHistory());
+        });
+    }
+
+    /** Minimum-variance weights as an object {ticker: weight} in answer order, their budget and volatility. */
+    void minimumVariance(Context ctx, MinimumVarianceAnswer a, byte[] key) {
+        double[] w = a.weights();
+        List<String> tickers = a.tickers();
+        json(ctx, a.fit(), key, (long) tickers.size() * (BYTES_PER_NUMBER + 12), g -> {
+            writeScale(g, a.scale());
+            g.strings("tickers", tickers);
+            g.strings("omitted", a.omitted());
+            g.strings("shortHistory", a.shortHistory());
+            g.startObject("weights");
+            for (int i = 0; i < w.length; i++) g.number(tickers.get(i), w[i]);
+            g.endObject();
+            g.number("budget", a.budget());
+            g.number("volatility", a.volatility());
         });
     }
 
@@ -283,8 +326,10 @@ final class QueryResponses {
         w.write('\n');
     }
 
-    private static void omittedHeader(Context ctx, List<String> omitted) {
+    /** {@code X-Omitted} and {@code X-Short-History}, each when not empty. */
+    private static void listHeaders(Context ctx, List<String> omitted, List<String> shortHistory) {
         if (!omitted.isEmpty()) ResponseSender.listHeader(ctx, "X-Omitted", omitted);
+        if (!shortHistory.isEmpty()) ResponseSender.listHeader(ctx, "X-Short-History", shortHistory);
     }
 
     private static List<String> factorColumns(int k) {

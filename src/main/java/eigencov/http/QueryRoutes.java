@@ -2,6 +2,7 @@ package eigencov.http;
 
 import com.fasterxml.jackson.core.JsonParser;
 import com.fasterxml.jackson.databind.DeserializationFeature;
+import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.ObjectReader;
 import com.fasterxml.jackson.databind.annotation.JsonDeserialize;
@@ -11,6 +12,8 @@ import eigencov.service.CovarianceMatrix;
 import eigencov.service.CovarianceQuery;
 import eigencov.service.ExposuresQuery;
 import eigencov.service.FactorForm;
+import eigencov.service.MinimumVarianceQuery;
+import eigencov.service.PrecisionQuery;
 import eigencov.service.QueryService;
 import eigencov.service.RiskQuery;
 import eigencov.service.Weights;
@@ -32,9 +35,9 @@ import java.util.regex.Pattern;
  *
  * <p>Every endpoint takes the query parameters {@code asOf=YYYY-MM-DD} or {@code fit=ID} (not both;
  * default the newest fit) and, where tickers are named, {@code missing=error|omit}; POST bodies hold
- * only the request itself. Formats by {@code Accept}: covariance (matrix form), exposures and
- * factor returns in JSON, CSV and {@code .npy}; the covariance factor form, factors and risk in
- * JSON only (a factor form is several arrays: over CSV or {@code .npy} ask for
+ * only the request itself. Formats by {@code Accept}: covariance (matrix form), precision, exposures
+ * and factor returns in JSON, CSV and {@code .npy}; the covariance factor form, factors, risk and
+ * minimum variance in JSON only (a factor form is several arrays: over CSV or {@code .npy} ask for
  * {@code /exposures} and {@code /factors} instead); anything else is a 406 problem.
  */
 public final class QueryRoutes implements RouteModule {
@@ -53,6 +56,8 @@ public final class QueryRoutes implements RouteModule {
     private final ObjectReader covarianceBody;
     private final ObjectReader exposuresBody;
     private final ObjectReader riskBody;
+    private final ObjectReader precisionBody;
+    private final ObjectReader minimumVarianceBody;
 
     /** @param maxBodyBytes largest request body read (413 above), counted on the stream */
     public QueryRoutes(QueryService service, ObjectMapper mapper, long maxBodyBytes) {
@@ -63,6 +68,8 @@ public final class QueryRoutes implements RouteModule {
         this.exposuresBody = strictReader(mapper, ExposuresBody.class);
         // repeated keys are found by RiskBodyDeserializer and RiskQuery, not by the parser (see there)
         this.riskBody = mapper.readerFor(RiskBody.class).without(DeserializationFeature.ACCEPT_FLOAT_AS_INT);
+        this.precisionBody = strictReader(mapper, PrecisionBody.class);
+        this.minimumVarianceBody = strictReader(mapper, MinimumVarianceBody.class);
     }
 
     /**
@@ -83,6 +90,14 @@ public final class QueryRoutes implements RouteModule {
     record ExposuresBody(List<String> tickers) {
     }
 
+    /** POST /precision body. */
+    record PrecisionBody(List<String> tickers, String scale, Integer horizonDays) {
+    }
+
+    /** POST /minimum-variance body; budget is read as a node so that only a JSON number is taken (not "1"). */
+    record MinimumVarianceBody(List<String> tickers, JsonNode budget, String scale, Integer horizonDays) {
+    }
+
     /** POST /risk body. */
     @JsonDeserialize(using = RiskBodyDeserializer.class)
     record RiskBody(Weights weights, Weights benchmark, String scale, Integer horizonDays) {
@@ -97,6 +112,8 @@ public final class QueryRoutes implements RouteModule {
         routes.get("/v1/models/{model}/factors", this::factors);
         routes.get("/v1/models/{model}/factor-returns", this::factorReturns);
         routes.post("/v1/models/{model}/risk", this::risk);
+        routes.post("/v1/models/{model}/precision", this::precision);
+        routes.post("/v1/models/{model}/minimum-variance", this::minimumVariance);
     }
 
     private void covarianceGet(Context ctx) {
@@ -169,6 +186,30 @@ public final class QueryRoutes implements RouteModule {
         RiskBody b = body(ctx, riskBody);
         RiskQuery q = new RiskQuery(b.weights(), b.benchmark(), QueryParams.scale(b.scale(), b.horizonDays()), p.missing());
         responses.risk(ctx, service.risk(model(ctx), p.selector(), q), riskKey(q));
+    }
+
+    private void precision(Context ctx) throws IOException {
+        QueryParams p = QueryParams.of(ctx.queryParamMap(), QueryParams.SELECTION);
+        Representation rep = Representation.negotiate(ctx.header("Accept"), TABULAR);
+        PrecisionBody b = body(ctx, precisionBody);
+        PrecisionQuery q = new PrecisionQuery(b.tickers(), QueryParams.scale(b.scale(), b.horizonDays()), p.missing());
+        responses.precision(ctx, rep, service.precision(model(ctx), p.selector(), q),
+                key("precision|" + scaleKey(q.scale()) + "|" + q.missing() + "|" + String.join(",", q.tickers())));
+    }
+
+    private void minimumVariance(Context ctx) throws IOException {
+        QueryParams p = QueryParams.of(ctx.queryParamMap(), QueryParams.SELECTION);
+        Representation.negotiate(ctx.header("Accept"), JSON_ONLY);
+        MinimumVarianceBody b = body(ctx, minimumVarianceBody);
+        double budget = MinimumVarianceQuery.DEFAULT_BUDGET;
+        if (b.budget() != null && !b.budget().isNull()) {
+            if (!b.budget().isNumber()) throw ApiException.badField("budget", "must be a JSON number, was " + b.budget());
+            budget = b.budget().doubleValue();
+        }
+        MinimumVarianceQuery q = new MinimumVarianceQuery(b.tickers(), budget, QueryParams.scale(b.scale(), b.horizonDays()), p.missing());
+        responses.minimumVariance(ctx, service.minimumVariance(model(ctx), p.selector(), q),
+                key("minimum-variance|" + Double.doubleToLongBits(q.budget()) + "|" + scaleKey(q.scale()) + "|" + q.missing() + "|"
+                        + String.join(",", q.tickers())));
     }
 
     private static byte[] key(String normalised) {

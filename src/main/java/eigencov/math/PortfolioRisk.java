@@ -14,23 +14,23 @@ package eigencov.math;
  * @param contribution            w_i (Cw)_i / vol per asset; these sum to vol
  * @param specificContributions   d_i w_i^2 / vol per asset; factor plus specific contributions also sum to vol
  * @param trackingError           sqrt(a'Ca), a = w - benchmark, or null without benchmark
- * @param betaToFirstFactor       sum w_i beta_i
- * @param assetBetasToFirstFactor beta_i = (B F)_i1 / F_11: covariance of asset i with factor 1 over its variance
- *                                under the model (specific returns are uncorrelated with factors)
+ * @param beta                    the portfolio's beta to the first factor, {@code sum w_i beta_i}
+ * @param assetBetas              each asset's beta to the first factor, {@code (C p)_i / (p'C p)} with p the
+ *                                first factor's portfolio ({@link FirstFactorBeta})
  * @param active                  decomposition of the active risk over the union of portfolio and benchmark
  *                                names, or null without benchmark
  */
 public record PortfolioRisk(double variance, double volatility, double factorVariance, double specificVariance,
                             double[] factorExposures, double[] factorContributions, double[] marginal,
                             double[] contribution, double[] specificContributions, Double trackingError,
-                            double betaToFirstFactor, double[] assetBetasToFirstFactor, ActiveRisk active) {
+                            double beta, double[] assetBetas, ActiveRisk active) {
     public PortfolioRisk {
         factorExposures = factorExposures.clone();
         factorContributions = factorContributions.clone();
         marginal = marginal.clone();
         contribution = contribution.clone();
         specificContributions = specificContributions.clone();
-        assetBetasToFirstFactor = assetBetasToFirstFactor.clone();
+        assetBetas = assetBetas.clone();
     }
 
     @Override
@@ -59,7 +59,7 @@ public record PortfolioRisk(double variance, double volatility, double factorVar
     }
 
     @Override
-    public double[] assetBetasToFirstFactor() {
-        return assetBetasToFirstFactor.clone();
+    public double[] assetBetas() {
+        return assetBetas.clone();
     }
 }

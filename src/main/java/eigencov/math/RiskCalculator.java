@@ -106,37 +106,27 @@ public final class RiskCalculator {
     /**
      * Risk of the portfolio {@code weights} on model rows idx, and tracking error against an optional
      * benchmark (benchIdx, benchmarkWeights; both null for none). Variance {@code (B'w)'F(B'w) + sum d_i w_i^2}
-     * times scale; a zero portfolio has volatility 0 and zero contributions (not NaN).
+     * times scale; a zero portfolio has volatility 0 and zero contributions (not NaN). {@code betas} holds each
+     * model row's beta to the first factor ({@link FirstFactorBeta#betas}, computed once per fit); the
+     * portfolio's beta is {@code w'beta}.
      */
     public static PortfolioRisk portfolio(FactorModel m, int[] idx, double[] weights, int[] benchIdx,
-                                          double[] benchmarkWeights, double scale) {
+                                          double[] benchmarkWeights, double scale, double[] betas) {
         checkIndices(m, idx, "idx");
         checkWeights(idx, weights, "weights");
         checkScale(scale);
         if ((benchIdx == null) != (benchmarkWeights == null)) {
             throw new IllegalArgumentException("benchIdx and benchmarkWeights must both be given or both be null");
         }
+        if (betas == null || betas.length != m.size()) {
+            throw new IllegalArgumentException("betas must hold one value per model row (" + m.size() + ")");
+        }
         Decomposition p = decompose(m, idx, weights, scale);
-        int k = m.factors();
-        double[] b = m.exposuresView();
-        double f11 = m.factorCov(0, 0);
-        // beta_i = B_i . (F e_1) / F_11, and the portfolio's is w'beta = (F x)_1 / F_11
-        double[] col = new double[k];
-        for (int e = 0; e < k; e++) {
-            col[e] = f11 > 0 ? m.factorCov(e, 0) / f11 : 0;
-        }
-        double[] betas = new double[idx.length];
-        for (int a = 0; a < idx.length; a++) {
-            int bo = idx[a] * k;
-            double s = 0;
-            for (int e = 0; e < k; e++) {
-                s += b[bo + e] * col[e];
-            }
-            betas[a] = s;
-        }
+        double[] assetBetas = new double[idx.length];
         double beta = 0;
-        for (int e = 0; e < k; e++) {
-            beta += p.exposures[e] * col[e];
+        for (int a = 0; a < idx.length; a++) {
+            assetBetas[a] = betas[idx[a]];
+            beta += weights[a] * assetBetas[a];
         }
         ActiveRisk active = null;
         Double te = null;
@@ -169,7 +159,7 @@ public final class RiskCalculator {
             te = q.vol;
         }
         return new PortfolioRisk(p.variance, p.vol, p.factorVariance, p.specificVariance, p.exposures,
-                p.factorContributions, p.marginal, p.contribution, p.specificContributions, te, beta, betas, active);
+                p.factorContributions, p.marginal, p.contribution, p.specificContributions, te, beta, assetBetas, active);
     }
 
     /** Volatility only, the hot path of many small queries: O(|S| k + k^2), no allocation beyond k doubles. */
@@ -204,7 +194,8 @@ public final class RiskCalculator {
         return s;
     }
 
-    private static final class Decomposition {
+    /** Risk of one weight vector; package-private for {@link FirstFactorBeta}, which reads marginal and vol. */
+    static final class Decomposition {
         double variance;
         double vol;
         double factorVariance;
@@ -216,7 +207,7 @@ public final class RiskCalculator {
         double[] specificContributions;
     }
 
-    private static Decomposition decompose(FactorModel m, int[] idx, double[] w, double scale) {
+    static Decomposition decompose(FactorModel m, int[] idx, double[] w, double scale) {
         int k = m.factors();
         int n = idx.length;
         double[] b = m.exposuresView();

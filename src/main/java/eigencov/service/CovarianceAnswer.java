@@ -11,4 +11,7 @@ public sealed interface CovarianceAnswer permits CovarianceMatrix, FactorForm {
 
     /** Requested tickers the fit does not cover (empty unless missing=omit). */
     List<String> omitted();
+
+    /** Answered tickers that are short-history names of the fit (docs/design.md section 6), in answer order. */
+    List<String> shortHistory();
 }

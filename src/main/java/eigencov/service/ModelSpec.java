@@ -23,17 +23,33 @@ import java.util.regex.Pattern;
  * @param refitOnIngest fit again after an ingest adds a new last date to the panel (default false)
  * @param alignment     {@code sign} (default: each factor's sign follows the previous fit) or {@code rotate}
  *                      (then also an orthogonal Procrustes rotation onto the previous fit's factors, reported)
+ * @param shortHistory  null: off; else names below the coverage threshold with at least
+ *                      {@code minObservations} observations in the window are served too (docs/design.md section 6)
  */
 @JsonInclude(JsonInclude.Include.NON_NULL)
-@JsonPropertyOrder({"panel", "windowDays", "factors", "halfLifeDays", "minCoverage", "basis", "specificFloor", "refit", "refitOnIngest",
-        "alignment"})
+@JsonPropertyOrder({"panel", "windowDays", "factors", "halfLifeDays", "minCoverage", "shortHistory", "basis", "specificFloor", "refit",
+        "refitOnIngest", "alignment"})
 public record ModelSpec(String panel, Integer windowDays, Factors factors, Double halfLifeDays, Double minCoverage, String basis,
-                        Double specificFloor, Refit refit, Boolean refitOnIngest, String alignment) {
+                        Double specificFloor, Refit refit, Boolean refitOnIngest, String alignment, ShortHistory shortHistory) {
 
-    /** Signs-only alignment (the default). */
+    /** Signs-only alignment (the default), no short-history names. */
     public ModelSpec(String panel, Integer windowDays, Factors factors, Double halfLifeDays, Double minCoverage, String basis,
                      Double specificFloor, Refit refit, Boolean refitOnIngest) {
-        this(panel, windowDays, factors, halfLifeDays, minCoverage, basis, specificFloor, refit, refitOnIngest, null);
+        this(panel, windowDays, factors, halfLifeDays, minCoverage, basis, specificFloor, refit, refitOnIngest, null, null);
+    }
+
+    /** No short-history names. */
+    public ModelSpec(String panel, Integer windowDays, Factors factors, Double halfLifeDays, Double minCoverage, String basis,
+                     Double specificFloor, Refit refit, Boolean refitOnIngest, String alignment) {
+        this(panel, windowDays, factors, halfLifeDays, minCoverage, basis, specificFloor, refit, refitOnIngest, alignment, null);
+    }
+
+    /**
+     * {@code {"minObservations": 60}}: names below the coverage threshold with at least this many observations in
+     * the window get exposures by weighted least squares on the fit's factor returns. At least k + 2 (an
+     * intercept, k exposures, one residual degree of freedom) and at most {@code windowDays}.
+     */
+    public record ShortHistory(Integer minObservations) {
     }
 
     static final List<String> ALIGNMENTS = List.of("sign", "rotate");
@@ -71,7 +87,7 @@ public record ModelSpec(String panel, Integer windowDays, Factors factors, Doubl
     public ModelSpec withDefaults() {
         return new ModelSpec(panel, windowDays, factors, halfLifeDays, minCoverage, basis == null ? null : basis.toLowerCase(Locale.ROOT),
                 specificFloor == null ? FitOptions.DEFAULT_SPECIFIC_FLOOR : specificFloor, refit,
-                refitOnIngest == null ? Boolean.FALSE : refitOnIngest, alignment);
+                refitOnIngest == null ? Boolean.FALSE : refitOnIngest, alignment, shortHistory);
     }
 
     /** Every problem of the spec, each naming its field; empty when valid. Does not check that the panel exists. */
@@ -92,6 +108,7 @@ public record ModelSpec(String panel, Integer windowDays, Factors factors, Doubl
             add(out, "basis", "must be covariance or correlation, was '" + basis + "'");
         if (specificFloor != null && !(specificFloor >= 0 && specificFloor < 1))
             add(out, "specificFloor", "must be in [0, 1), was " + specificFloor);
+        shortHistoryProblems(out);
         if (alignment != null && !ALIGNMENTS.contains(alignment))
             add(out, "alignment", "must be sign or rotate, was '" + alignment + "'");
         if (refit != null) {
@@ -148,6 +165,29 @@ public record ModelSpec(String panel, Integer windowDays, Factors factors, Doubl
         }
     }
 
+    /**
+     * minObservations: at least k + 2 where the rule fixes k or caps it (count, max; the fit checks the other
+     * rules' k), at least {@link FitOptions#MIN_SHORT_HISTORY_OBSERVATIONS} always, at most windowDays.
+     */
+    private void shortHistoryProblems(List<InvalidInputException.Issue> out) {
+        if (shortHistory == null) return;
+        Integer min = shortHistory.minObservations();
+        String field = "shortHistory.minObservations";
+        if (min == null) {
+            add(out, field, "is required when shortHistory is given (observations in the window a name needs, e.g. 60)");
+            return;
+        }
+        Integer k = factors == null ? null : "fixed".equals(factors.rule()) ? factors.count()
+                : "bai-ng".equals(factors.rule()) || "eigenvalue-ratio".equals(factors.rule()) ? factors.max() : null;
+        if (k != null && k >= 1 && min < k + 2) {
+            add(out, field, "must be at least k + 2 = " + (k + 2) + " for factors." + ("fixed".equals(factors.rule()) ? "count" : "max")
+                    + " " + k + " (an intercept, k exposures and one residual degree of freedom), was " + min);
+        } else if (min < FitOptions.MIN_SHORT_HISTORY_OBSERVATIONS) {
+            add(out, field, "must be at least " + FitOptions.MIN_SHORT_HISTORY_OBSERVATIONS + " (k + 2 for one factor), was " + min);
+        }
+        if (windowDays != null && min > windowDays) add(out, field, "must be at most windowDays (" + windowDays + "), was " + min);
+    }
+
     private static void add(List<InvalidInputException.Issue> out, String field, String message) {
         out.add(new InvalidInputException.Issue(null, field, message));
     }
@@ -172,7 +212,8 @@ public record ModelSpec(String panel, Integer windowDays, Factors factors, Doubl
         };
         FactorHold hold = FactorHold.after(factors.hold() == null ? 1 : factors.hold(), previous, rule);
         return new FitOptions(rule, halfLifeDays, minCoverage, Basis.valueOf(basis.toUpperCase(Locale.ROOT)),
-                specificFloor == null ? FitOptions.DEFAULT_SPECIFIC_FLOOR : specificFloor, hold, "rotate".equals(alignment));
+                specificFloor == null ? FitOptions.DEFAULT_SPECIFIC_FLOOR : specificFloor, hold, "rotate".equals(alignment),
+                shortHistory == null ? null : shortHistory.minObservations());
     }
 
     /** The scheduled refit period, or null. */

@@ -1,9 +1,11 @@
 package eigencov.service;
 
+import eigencov.math.FactorInverse;
 import eigencov.math.FactorModel;
 import eigencov.math.FitResult;
 import eigencov.math.PortfolioRisk;
 import eigencov.math.RiskCalculator;
+import eigencov.math.SingularCovarianceException;
 
 import java.time.LocalDate;
 import java.util.ArrayList;
@@ -11,13 +13,17 @@ import java.util.List;
 
 /**
  * Answers queries from served fits: covariance (matrix or factor form), exposures, factors, factor
- * returns and portfolio risk. Everything is read from the fit's factor form, never from a K x K
- * matrix (style practice 9). Stateless apart from the {@link FitLookup} it reads; safe for
- * concurrent use.
+ * returns, portfolio risk, the inverse of a covariance submatrix and minimum-variance weights.
+ * Everything is read from the fit's factor form, never from a K x K matrix, and no n x n matrix is
+ * ever inverted (Woodbury, {@link FactorInverse}; style practice 9). Short-history names are part of
+ * every served model ({@link ServedFit#model()}); answers list the ones they involve. Stateless apart
+ * from the {@link FitLookup} it reads; safe for concurrent use.
  */
 public final class QueryService {
     /** Problem type of a query naming tickers a fit does not cover (HTTP 422). */
     public static final String UNKNOWN_TICKERS = "unknown-tickers";
+    /** Problem type of an inverse that does not exist: names with zero specific variance (HTTP 422). */
+    public static final String SINGULAR_COVARIANCE = "singular-covariance";
 
     private final FitLookup fits;
 
@@ -31,13 +37,13 @@ public final class QueryService {
         TickerSelection sel = select(served, q.tickers(), i -> "tickers[" + i + "]", q.missing());
         double scale = q.scale().varianceMultiplier();
         if (q.form() == CovarianceForm.MATRIX) {
-            double[] c = RiskCalculator.covariance(served.result().model(), sel.rows(), scale, q.correlation());
-            return CovarianceMatrix.ofComputed(served.ref(), sel.kept(), sel.omitted(), q.scale(), q.correlation(), c);
+            double[] c = RiskCalculator.covariance(served.model(), sel.rows(), scale, q.correlation());
+            return CovarianceMatrix.ofComputed(served.ref(), sel, q.scale(), q.correlation(), c);
         }
         return factorForm(served, sel, q.scale());
     }
 
-    /** Exposures and daily specific variances of the requested tickers (the factor form without F). */
+    /** Exposures, daily specific variances and first-factor betas of the requested tickers (the factor form without F). */
     public FactorForm exposures(String model, FitSelector selector, ExposuresQuery q) {
         ServedFit served = resolve(model, selector);
         TickerSelection sel = select(served, q.tickers(), i -> "tickers[" + i + "]", q.missing());
@@ -89,17 +95,69 @@ public final class QueryService {
 
         double[] w = weightsOf(q.weights(), sel);
         double[] bw = bench == null ? null : weightsOf(q.benchmark(), bench);
-        PortfolioRisk risk = RiskCalculator.portfolio(served.result().model(), sel.rows(), w,
-                bench == null ? null : bench.rows(), bw, q.scale().varianceMultiplier());
+        FactorModel m = served.model();
+        PortfolioRisk risk = RiskCalculator.portfolio(m, sel.rows(), w, bench == null ? null : bench.rows(), bw,
+                q.scale().varianceMultiplier(), served.betaView());
         List<String> omitted = new ArrayList<>(sel.omitted());
+        List<String> shortHistory = new ArrayList<>(sel.shortHistory());
         if (bench != null) {
             for (String t : bench.omitted()) if (!omitted.contains(t)) omitted.add(t);
+            for (String t : bench.shortHistory()) if (!shortHistory.contains(t)) shortHistory.add(t);
         }
         List<String> activeTickers = new ArrayList<>();
         if (risk.active() != null) {
-            for (int row : risk.active().indices()) activeTickers.add(served.result().model().tickers().get(row));
+            for (int row : risk.active().indices()) activeTickers.add(m.tickers().get(row));
         }
-        return new RiskAnswer(served.ref(), q.scale(), sel.kept(), w, omitted, risk, activeTickers);
+        return new RiskAnswer(served.ref(), q.scale(), sel.kept(), w, omitted, risk, activeTickers, shortHistory);
+    }
+
+    /**
+     * The inverse of the requested tickers' covariance at the query's scale, {@code (s C_S)^-1 = C_S^-1 / s},
+     * by Woodbury on the factor form: O(n k^2) plus O(n^2 k) for the n^2 entries.
+     *
+     * @throws InvalidInputException 422 naming the tickers with zero specific variance (no inverse exists)
+     */
+    public PrecisionMatrix precision(String model, FitSelector selector, PrecisionQuery q) {
+        ServedFit served = resolve(model, selector);
+        TickerSelection sel = select(served, q.tickers(), i -> "tickers[" + i + "]", q.missing());
+        double[] inverse = inverse(served, sel, q.tickers()).inverse(q.scale().varianceMultiplier());
+        return PrecisionMatrix.ofComputed(served.ref(), sel, q.scale(), inverse);
+    }
+
+    /**
+     * The minimum-variance weights of the requested tickers, {@code budget C_S^-1 1 / (1'C_S^-1 1)}, and
+     * their volatility at the query's scale: O(n k^2), no n x n matrix.
+     *
+     * @throws InvalidInputException 422 naming the tickers with zero specific variance (no inverse exists)
+     */
+    public MinimumVarianceAnswer minimumVariance(String model, FitSelector selector, MinimumVarianceQuery q) {
+        ServedFit served = resolve(model, selector);
+        TickerSelection sel = select(served, q.tickers(), i -> "tickers[" + i + "]", q.missing());
+        double[] w = new double[sel.rows().length];
+        double variance = inverse(served, sel, q.tickers()).minimumVariance(q.budget(), w);
+        double volatility = Math.sqrt(Math.max(0, variance) * q.scale().varianceMultiplier());
+        return new MinimumVarianceAnswer(served.ref(), q.scale(), sel.kept(), sel.omitted(), sel.shortHistory(), w, q.budget(),
+                volatility);
+    }
+
+    /** The Woodbury inverse on the selected rows, or a 422 naming the requested tickers that make it singular. */
+    private static FactorInverse inverse(ServedFit served, TickerSelection sel, List<String> requested) {
+        try {
+            return FactorInverse.of(served.model(), sel.rows());
+        } catch (SingularCovarianceException e) {
+            int[] at = e.positions();
+            List<InvalidInputException.Issue> issues = new ArrayList<>(at.length);
+            for (int a : at) {
+                int i = sel.positions()[a];
+                issues.add(new InvalidInputException.Issue(null, "tickers[" + i + "]", "'" + requested.get(i)
+                        + "' has zero specific variance in this fit, so the covariance has no inverse"));
+            }
+            FitRef ref = served.ref();
+            throw new InvalidInputException(at.length + " requested ticker" + (at.length == 1 ? " has" : "s have")
+                    + " zero specific variance in fit " + ref.id() + " of model '" + ref.model() + "' (its specificFloor is 0): "
+                    + "the covariance of these tickers has no inverse; leave " + (at.length == 1 ? "it" : "them") + " out",
+                    Tickers.cap(issues), true, SINGULAR_COVARIANCE);
+        }
     }
 
     private ServedFit resolve(String model, FitSelector selector) {
@@ -108,7 +166,7 @@ public final class QueryService {
 
     private static TickerSelection select(ServedFit served, List<String> tickers, java.util.function.IntFunction<String> fieldOf,
                                           MissingTickers missing) {
-        TickerSelection sel = TickerSelection.of(served.result(), tickers, fieldOf);
+        TickerSelection sel = TickerSelection.of(served, tickers, fieldOf);
         if (missing == MissingTickers.ERROR && !sel.issues().isEmpty()) throw uncovered(served, sel.issues());
         requireSome(served, sel, "tickers");
         return sel;
@@ -128,27 +186,30 @@ public final class QueryService {
                 + "); use missing=omit to answer on the others", Tickers.cap(issues), true, UNKNOWN_TICKERS);
     }
 
-    /** Gathers rows of B and D for the selected tickers (EJML-style extract by row index). */
+    /** Gathers rows of B, D and the betas for the selected tickers (EJML-style extract by row index). */
     private static FactorForm factorForm(ServedFit served, TickerSelection sel, Scale scale) {
-        FactorModel m = served.result().model();
+        FactorModel m = served.model();
+        double[] betas = served.betaView();
         int k = m.factors();
         int[] rows = sel.rows();
         double s = scale.varianceMultiplier();
         double[] b = new double[rows.length * k];
         double[] d = new double[rows.length];
+        double[] beta = new double[rows.length];
         for (int r = 0; r < rows.length; r++) {
             int i = rows[r];
             for (int j = 0; j < k; j++) b[r * k + j] = m.exposure(i, j);
             d[r] = m.specificVariance(i) * s;
+            beta[r] = betas[i];
         }
         double[] f = m.factorCovariance();
         for (int p = 0; p < f.length; p++) f[p] *= s;
-        return new FactorForm(served.ref(), sel.kept(), sel.omitted(), scale, k, b, f, d);
+        return new FactorForm(served.ref(), sel.kept(), sel.omitted(), sel.shortHistory(), scale, k, b, f, d, beta);
     }
 
     /** The weights' tickers matched against the fit; an uncovered one is named {@code field.TICKER}. */
     private static TickerSelection select(ServedFit served, Weights w, String field) {
-        return TickerSelection.of(served.result(), w.tickers(), i -> field + "." + w.ticker(i));
+        return TickerSelection.of(served, w.tickers(), i -> field + "." + w.ticker(i));
     }
 
     private static double[] weightsOf(Weights weights, TickerSelection sel) {

@@ -9,12 +9,14 @@ import java.util.List;
  * the engine's {@link PortfolioRisk}, whose per-asset arrays follow {@code tickers}. With a
  * benchmark, {@code activeTickers} names the rows of the active-risk decomposition
  * ({@link PortfolioRisk#active()}: portfolio names, then benchmark-only names); otherwise it is empty.
+ * {@code shortHistory} names the answered tickers (portfolio or benchmark) that are short-history names of the fit.
  */
 public record RiskAnswer(FitRef fit, Scale scale, List<String> tickers, double[] weights, List<String> omitted,
-                         PortfolioRisk risk, List<String> activeTickers) {
+                         PortfolioRisk risk, List<String> activeTickers, List<String> shortHistory) {
     public RiskAnswer {
         tickers = List.copyOf(tickers);
         omitted = List.copyOf(omitted);
+        shortHistory = List.copyOf(shortHistory);
         activeTickers = List.copyOf(activeTickers);
         if (weights.length != tickers.size()) throw new IllegalArgumentException("weights length " + weights.length + " != tickers " + tickers.size());
         weights = weights.clone();

@@ -2,7 +2,6 @@ package eigencov.service;
 
 import eigencov.math.Exclusion;
 import eigencov.math.FactorModel;
-import eigencov.math.FitResult;
 
 import java.util.ArrayList;
 import java.util.HashMap;
@@ -14,16 +13,20 @@ import java.util.Map;
  * order) and where each stood in the request, the uncovered ones, and, for each uncovered one, a
  * located issue saying why. Internal to the service: the arrays are not copied.
  *
- * @param rows      model row of each kept ticker
- * @param positions request position of each kept ticker (rows[j] answers tickers[positions[j]])
+ * @param rows         row of each kept ticker in the served model ({@link ServedFit#model()})
+ * @param positions    request position of each kept ticker (rows[j] answers tickers[positions[j]])
+ * @param shortHistory the kept tickers that are short-history names of the fit, in request order
  */
-record TickerSelection(int[] rows, int[] positions, List<String> kept, List<String> omitted, List<InvalidInputException.Issue> issues) {
+record TickerSelection(int[] rows, int[] positions, List<String> kept, List<String> omitted, List<InvalidInputException.Issue> issues,
+                       List<String> shortHistory) {
 
     /**
      * @param fieldOf names the request field of the i-th requested ticker (e.g. {@code tickers[3]}, {@code weights.X})
      */
-    static TickerSelection of(FitResult fit, List<String> tickers, java.util.function.IntFunction<String> fieldOf) {
+    static TickerSelection of(ServedFit fit, List<String> tickers, java.util.function.IntFunction<String> fieldOf) {
         FactorModel m = fit.model();
+        int universe = fit.universeSize();
+        List<String> shortHistory = List.of();
         int[] rows = new int[tickers.size()];
         int[] positions = new int[tickers.size()];
         int n = 0;
@@ -38,9 +41,13 @@ record TickerSelection(int[] rows, int[] positions, List<String> kept, List<Stri
                 positions[n] = i;
                 rows[n++] = row;
                 kept.add(t);
+                if (row >= universe) {
+                    if (shortHistory.isEmpty()) shortHistory = new ArrayList<>();
+                    shortHistory.add(t);
+                }
                 continue;
             }
-            if (excluded == null) excluded = byTicker(fit.excluded());
+            if (excluded == null) excluded = byTicker(fit.result().excluded());
             Exclusion why = excluded.get(t);
             omitted.add(t);
             issues.add(new InvalidInputException.Issue(null, fieldOf.apply(i), why == null
@@ -48,8 +55,9 @@ record TickerSelection(int[] rows, int[] positions, List<String> kept, List<Stri
                     : "'" + t + "' was excluded from the fit (" + why.reason() + ": " + why.observations()
                     + " observations, " + why.required() + " required)"));
         }
-        return n == rows.length ? new TickerSelection(rows, positions, kept, omitted, issues)
-                : new TickerSelection(java.util.Arrays.copyOf(rows, n), java.util.Arrays.copyOf(positions, n), kept, omitted, issues);
+        return n == rows.length ? new TickerSelection(rows, positions, kept, omitted, issues, shortHistory)
+                : new TickerSelection(java.util.Arrays.copyOf(rows, n), java.util.Arrays.copyOf(positions, n), kept, omitted, issues,
+                shortHistory);
     }
 
     private static Map<String, Exclusion> byTicker(List<Exclusion> list) {

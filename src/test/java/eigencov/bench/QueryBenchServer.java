@@ -64,7 +64,10 @@ public final class QueryBenchServer {
         app.close();
     }
 
-    /** Request bodies: covariance of 50 and 500 names, factor form of all names, risk of an all-name portfolio. */
+    /**
+     * Request bodies: covariance of 50 and 500 names, factor form of all names, risk of an all-name portfolio,
+     * the inverse and the minimum-variance weights of all names.
+     */
     private static void writeBodies(Path dir, List<String> tickers) throws IOException {
         Files.createDirectories(dir);
         ObjectMapper json = new ObjectMapper();
@@ -75,6 +78,8 @@ public final class QueryBenchServer {
         Map<String, Double> w = new LinkedHashMap<>();
         for (String t : tickers) w.put(t, (0.5 + rnd.nextDouble()) / tickers.size());
         json.writeValue(dir.resolve("risk3000.json").toFile(), Map.of("weights", w));
+        json.writeValue(dir.resolve("precision3000.json").toFile(), Map.of("tickers", tickers));
+        json.writeValue(dir.resolve("mv3000.json").toFile(), Map.of("tickers", tickers));
     }
 
     /** {@code n} tickers spread over the universe, not in universe order. */

@@ -28,7 +28,9 @@ class ContractCoverageTest {
             "POST /v1/models/{model}/fits", "GET /v1/models/{model}/fits", "GET /v1/models/{model}/fits/{id}",
             "POST /v1/models/{model}/covariance", "GET /v1/models/{model}/covariance",
             "POST /v1/models/{model}/exposures", "GET /v1/models/{model}/factors",
-            "GET /v1/models/{model}/factor-returns", "POST /v1/models/{model}/risk");
+            "GET /v1/models/{model}/factor-returns", "POST /v1/models/{model}/risk",
+            // design.md section 6, serving additions
+            "POST /v1/models/{model}/precision", "POST /v1/models/{model}/minimum-variance");
 
     /** Documented beyond design.md: GET form of exposures (as covariance has one). */
     private static final Set<String> EXTRA = Set.of("GET /v1/models/{model}/exposures");

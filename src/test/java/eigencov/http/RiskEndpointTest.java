@@ -175,4 +175,39 @@ class RiskEndpointTest {
         assertEquals("weights.ZZZ", p.get("errors").get(0).get("field").asText());
         assertEquals("benchmark.GONE", p.get("errors").get(1).get("field").asText());
     }
+
+    @Test
+    void betas_are_C_p_over_p_C_p_for_the_first_factors_portfolio_whose_own_beta_is_one() {
+        // docs/design.md section 6: p = e_1 scaled to sum 1 (covariance basis), beta = C p / (p'C p); checked with the
+        // explicit matrix of the definition (NaiveCovariance), names chosen as the whole synthetic universe
+        List<String> names = MAR.tickers();
+        int n = names.size();
+        double[] p = new double[n];
+        double sum = 0;
+        for (int i = 0; i < n; i++) sum += MAR.exposure(i, 0);
+        Map<String, Double> w = new LinkedHashMap<>();
+        for (int i = 0; i < n; i++) {
+            p[i] = MAR.exposure(i, 0) / sum;
+            w.put(names.get(i), p[i]);
+        }
+        JsonNode r = risk("synth", Map.of("weights", w, "scale", "annual"));
+        assertEquals(1.0, r.get("beta").doubleValue(), ALGEBRAIC, "p'beta = 1, whatever the scale");
+        double[][] c = NaiveCovariance.of(MAR, names, 1);
+        double pcp = 0;
+        double[] cp = new double[n];
+        for (int i = 0; i < n; i++) {
+            for (int j = 0; j < n; j++) cp[i] += c[i][j] * p[j];
+            pcp += p[i] * cp[i];
+        }
+        for (int i = 0; i < n; i++) {
+            JsonNode a = r.get("byAsset").get(i);
+            assertEquals(names.get(i), a.get("ticker").asText());
+            assertEquals(cp[i] / pcp, a.get("beta").doubleValue(), ALGEBRAIC * Math.abs(cp[i] / pcp) + 1e-15, names.get(i));
+        }
+        // a smaller portfolio: its beta is w'beta of the same per-name betas
+        JsonNode small = risk("synth", Map.of("weights", weights("T0003", 0.6, "T0009", 0.4)));
+        double expected = 0.6 * cp[3] / pcp + 0.4 * cp[9] / pcp;
+        assertEquals(expected, small.get("beta").doubleValue(), ALGEBRAIC * Math.abs(expected));
+        assertFalse(small.has("betaToFirstFactor"), "the old field is gone");
+    }
 }

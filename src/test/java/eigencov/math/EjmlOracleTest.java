@@ -213,7 +213,7 @@ class EjmlOracleTest {
             idx[i] = i;
             wt[i] = rnd.nextGaussian();
         }
-        PortfolioRisk p = RiskCalculator.portfolio(m, idx, wt, null, null, 1.0);
+        PortfolioRisk p = RiskCalculator.portfolio(m, idx, wt, null, null, 1.0, Fixtures.betas(m));
         double sum = 0;
         double split = 0;
         double quad = 0;

@@ -195,6 +195,21 @@ final class Fixtures {
         return RiskCalculator.covariance(m, all, 1.0, false);
     }
 
+    /**
+     * Each row's first-factor beta for a covariance-basis model without short-history names: the
+     * first factor's portfolio is column 1 of B scaled to sum to 1 (docs/design.md section 6).
+     */
+    static double[] betas(FactorModel m) {
+        double[] p = new double[m.size()];
+        double sum = 0;
+        for (int i = 0; i < p.length; i++) {
+            p[i] = m.exposure(i, 0);
+            sum += p[i];
+        }
+        for (int i = 0; i < p.length; i++) p[i] /= sum;
+        return FirstFactorBeta.betas(m, p);
+    }
+
     static double maxAbs(double[] x) {
         double m = 0;
         for (double v : x) {

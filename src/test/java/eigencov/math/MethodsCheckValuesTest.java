@@ -78,12 +78,26 @@ class MethodsCheckValuesTest {
     }
 
     @Test
-    void dataset_A_beta_of_equal_weights_to_the_first_factor_is_w_dot_v1() {
-        // methods.md s.9: beta_1 under the full S = w'v_1 = 0.465847; our model beta (B F)_1 / F_11 is w'v_1
-        FactorModel m = fitA(1, 0.0).model();
+    void dataset_A_beta_of_equal_weights_to_the_first_factor_follows_the_k1_check_value() {
+        // methods.md s.9 (Dataset A, equal weights, k = 1 model): w'C v_1 / lambda_1 = 0.477983. Our beta
+        // (docs/design.md section 6) scales v_1 to sum 1, p = v_1 / (1'v_1), and divides by the model variance of p:
+        // beta = w'C p / (p'C p) = (1'v_1) (w'C v_1) / (v_1'C v_1), with v_1'C v_1 = lambda_1 + v_1'D v_1 for k = 1.
+        // The methods.md values are for divisor T-1; the ratio w'C v_1 / lambda_1 does not depend on the divisor.
+        FitResult fit = fitA(1, 0.0);
+        FactorModel m = fit.model();
         PortfolioRisk p = RiskCalculator.portfolio(m, new int[] {0, 1, 2, 3}, new double[] {.25, .25, .25, .25},
-                null, null, 1.0);
-        close(0.465847, p.betaToFirstFactor(), "beta");
+                null, null, 1.0, FirstFactorBeta.betas(fit, m));
+        double[] v1 = {0.716941, 0.513016, 0.211378, 0.422053}; // methods.md s.0
+        double lambda = 1.354576 * 5 / 6;                        // methods.md s.0 (divisor 5), to our divisor 6
+        double sum = 0;
+        double vdv = 0;
+        for (int i = 0; i < 4; i++) {
+            sum += v1[i];
+            vdv += v1[i] * v1[i] * m.specificVariance(i);
+        }
+        double expected = sum * 0.477983 * lambda / (lambda + vdv);
+        // 6 printed decimals of 0.477983, times about 1.86 / 1.02
+        assertEquals(expected, p.beta(), 2 * SIX_DECIMALS, "beta");
     }
 
     @Test
@@ -121,7 +135,8 @@ class MethodsCheckValuesTest {
         int[] idx = {0, 1, 2};
         double[] w = {0.5, 0.3, 0.2};
         double third = 1.0 / 3;
-        PortfolioRisk p = RiskCalculator.portfolio(m, idx, w, idx, new double[] {third, third, third}, 1.0);
+        PortfolioRisk p = RiskCalculator.portfolio(m, idx, w, idx, new double[] {third, third, third}, 1.0,
+                Fixtures.betas(m));
         close(0.98, p.factorExposures()[0], "x1");
         close(0.18, p.factorExposures()[1], "x2");
         close(0.03874, p.factorVariance(), "factor var");

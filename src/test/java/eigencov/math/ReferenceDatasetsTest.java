@@ -99,7 +99,7 @@ class ReferenceDatasetsTest {
                 idx[i] = i;
             }
             double vol = n.get("equal_weight_portfolio").get("vol_factor_model_k" + k).asDouble();
-            assertRel(vol, RiskCalculator.portfolio(m, idx, w, null, null, 1.0).volatility(), vol,
+            assertRel(vol, RiskCalculator.portfolio(m, idx, w, null, null, 1.0, Fixtures.betas(m)).volatility(), vol,
                     dataset + " k" + k + " equal-weight vol");
             if (k == 2) {
                 // reference block is divisor T-1; S_n = S_(n-1) (T-1)/T scales eigenvalues and d alike

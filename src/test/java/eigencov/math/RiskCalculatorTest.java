@@ -149,7 +149,7 @@ class RiskCalculatorTest {
         }
         int[] bench = {5, 40, 41, 1};
         double[] bw = {0.25, 0.25, 0.25, 0.25};
-        PortfolioRisk p = RiskCalculator.portfolio(m, idx, w, bench, bw, 21);
+        PortfolioRisk p = RiskCalculator.portfolio(m, idx, w, bench, bw, 21, Fixtures.betas(m));
         double quad = 0;
         for (int a = 0; a < idx.length; a++) {
             for (int b = 0; b < idx.length; b++) {
@@ -187,20 +187,20 @@ class RiskCalculatorTest {
                     / (2 * h);
             assertEquals(deriv, p.marginal()[a], 1e-6 * Math.abs(deriv) + 1e-9, "marginal " + a);
         }
-        // betas: (B F)_i1 / F_11
+        // betas: each asset's is its model row's, the portfolio's is w'beta
+        double[] rowBetas = Fixtures.betas(m);
+        double wb = 0;
         for (int a = 0; a < idx.length; a++) {
-            double s = 0;
-            for (int c = 0; c < m.factors(); c++) {
-                s += m.exposure(idx[a], c) * m.factorCov(c, 0);
-            }
-            assertEquals(s / m.factorCov(0, 0), p.assetBetasToFirstFactor()[a], 1e-12);
+            assertEquals(rowBetas[idx[a]], p.assetBetas()[a], 0);
+            wb += w[a] * rowBetas[idx[a]];
         }
+        assertEquals(wb, p.beta(), IDENTITY * Math.abs(wb));
     }
 
     @Test
     void zero_weight_portfolio_has_zero_volatility_not_nan() {
         FactorModel m = randomModel(10, 2, 4);
-        PortfolioRisk p = RiskCalculator.portfolio(m, new int[] {1, 2}, new double[] {0, 0}, null, null, 1);
+        PortfolioRisk p = RiskCalculator.portfolio(m, new int[] {1, 2}, new double[] {0, 0}, null, null, 1, Fixtures.betas(m));
         assertEquals(0, p.volatility(), 0);
         assertEquals(0, p.marginal()[0], 0);
         assertEquals(0, p.contribution()[1], 0);
@@ -208,7 +208,7 @@ class RiskCalculatorTest {
         assertNull(p.trackingError());
         assertNull(p.active());
         PortfolioRisk same = RiskCalculator.portfolio(m, new int[] {1}, new double[] {1}, new int[] {1},
-                new double[] {1}, 1);
+                new double[] {1}, 1, Fixtures.betas(m));
         assertEquals(0, same.trackingError(), 0);
         assertTrue(Double.isFinite(same.active().marginal()[0]));
     }
@@ -223,7 +223,7 @@ class RiskCalculatorTest {
             idx[i] = i;
             w[i] = r.nextDouble();
         }
-        double full = RiskCalculator.portfolio(m, idx, w, null, null, 252).volatility();
+        double full = RiskCalculator.portfolio(m, idx, w, null, null, 252, Fixtures.betas(m)).volatility();
         assertEquals(full, RiskCalculator.volatility(m, idx, w, 252), IDENTITY * full);
     }
 
@@ -235,12 +235,14 @@ class RiskCalculatorTest {
         assertTrue(dup.getMessage().contains("idx[1]"), dup.getMessage());
         assertThrows(IllegalArgumentException.class, () -> RiskCalculator.covariance(m, new int[] {5}, 1, false));
         assertThrows(IllegalArgumentException.class,
-                () -> RiskCalculator.portfolio(m, new int[] {0}, new double[] {1, 2}, null, null, 1));
+                () -> RiskCalculator.portfolio(m, new int[] {0}, new double[] {1, 2}, null, null, 1, new double[5]));
         assertThrows(IllegalArgumentException.class,
-                () -> RiskCalculator.portfolio(m, new int[] {0}, new double[] {Double.NaN}, null, null, 1));
+                () -> RiskCalculator.portfolio(m, new int[] {0}, new double[] {Double.NaN}, null, null, 1, new double[5]));
         assertThrows(IllegalArgumentException.class,
-                () -> RiskCalculator.portfolio(m, new int[] {0}, new double[] {1}, new int[] {0}, null, 1));
+                () -> RiskCalculator.portfolio(m, new int[] {0}, new double[] {1}, new int[] {0}, null, 1, new double[5]));
         assertThrows(IllegalArgumentException.class, () -> RiskCalculator.covariance(m, new int[] {0}, 0, false));
+        assertThrows(IllegalArgumentException.class,
+                () -> RiskCalculator.portfolio(m, new int[] {0}, new double[] {1}, null, null, 1, new double[4]));
     }
 
     static double sum(double[] x) {

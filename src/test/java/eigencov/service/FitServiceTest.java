@@ -183,6 +183,7 @@ class FitServiceTest {
         assertArrayEquals(computed.varianceShare(), read.varianceShare());
         assertArrayEquals(computed.means(), read.means());
         assertArrayEquals(computed.factorReturns(), read.factorReturns());
+        assertArrayEquals(computed.variances(), read.variances());
         // The reports hold arrays (record equals compares them by reference): compare their JSON.
         assertEquals(fx.mapper.writeValueAsString(FitCodec.reports(computed)), fx.mapper.writeValueAsString(FitCodec.reports(read)));
         assertNotEquals(0, read.eigenvalues().length);
@@ -199,5 +200,27 @@ class FitServiceTest {
         fx.fits.fit("m", null, FitService.REQUEST);
         assertThrows(NotFoundException.class, () -> fx.served.resolve("m", LocalDate.of(2000, 1, 1), null));
         assertThrows(NotFoundException.class, () -> fx.served.resolve("m", null, 999L));
+    }
+
+    @Test
+    void short_history_names_are_stored_with_the_fit_and_read_back_identical() {
+        List<LocalDate> dates = SyntheticReturns.weekdays(LocalDate.of(2024, 1, 1), 60);
+        List<String> tickers = new java.util.ArrayList<>(SyntheticReturns.tickers(8));
+        tickers.add("LATE");
+        fx.ingest("p", SyntheticReturns.rows(12, tickers, dates).stream()
+                .filter(r -> !r.ticker().equals("LATE") || !r.date().isBefore(dates.get(25))).toList());
+        fx.models.put("m", new ModelSpec("p", 50, new ModelSpec.Factors("fixed", 2, null, null), null, 0.9, "covariance", null, null,
+                null, null, new ModelSpec.ShortHistory(20)));
+        FitView v = fx.fits.fit("m", null, FitService.REQUEST);
+        assertEquals(List.of(new FitView.ShortHistoryName("LATE", 35)), v.shortHistory());
+        FitResult computed = fx.served.resolve("m", null, null).result();
+        ServedFit read = new ServedFits(fx.fitRepo, fx.modelRepo, new FitCodec(fx.mapper)).resolve("m", null, v.id());
+        assertEquals(List.of("LATE"), read.result().shortHistory().tickers());
+        assertArrayEquals(computed.shortHistory().observations(), read.result().shortHistory().observations());
+        assertArrayEquals(computed.shortHistory().exposures(), read.result().shortHistory().exposures());
+        assertArrayEquals(computed.shortHistory().specificVariances(), read.result().shortHistory().specificVariances());
+        assertEquals(computed.servedModel(), read.model());
+        assertEquals(8, read.universeSize());
+        assertEquals(8, read.model().indexOf("LATE"));
     }
 }
