@@ -86,6 +86,12 @@ step "Risk of a portfolio: volatility, factor/specific split, by factor, by asse
 step "Tracking error against a benchmark" \
     -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/risk" \
     -d '{"weights":{"BLDN":0.4,"BNDX":0.3,"BRND":0.3},"benchmark":{"BLDN":0.25,"BNDX":0.25,"BRND":0.25,"DEMI":0.25},"scale":"annual"}'
+step "A recent listing (NELE, listed 2026-09-02) answers as a short-history name, listed in \"shortHistory\"" \
+    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/risk" -d '{"weights":{"BLDN":0.5,"NELE":0.5},"scale":"annual"}'
+step "Inverse of the covariance (precision matrix), by Woodbury on the factor form" \
+    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/precision" -d '{"tickers":["BLDN","BNDX","BRND"],"scale":"annual"}'
+step "Minimum-variance weights of a ticker list (fully invested, unconstrained) and their volatility" \
+    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/minimum-variance" -d '{"tickers":'"$TICKERS"',"scale":"annual"}'
 
 step "Clean up the tour's own model" -X DELETE "$URL/v1/models/tour-6m"
 echo
