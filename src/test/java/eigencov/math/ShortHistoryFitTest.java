@@ -194,7 +194,7 @@ class ShortHistoryFitTest {
     }
 
     @Test
-    void a_later_fit_aligns_to_the_universe_of_the_previous_one_whatever_its_short_history_names() {
+    void a_refit_aligned_to_the_previous_universe_model_keeps_the_model_and_the_short_history_names() {
         ReturnPanel panel = planted(5L, new int[] {3, 100});
         FitResult first = new FactorFitter(null).fit(panel, options(60), null);
         FitResult again = new FactorFitter(null).fit(panel, options(60), first.model());
