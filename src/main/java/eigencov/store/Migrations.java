@@ -28,7 +28,8 @@ final class Migrations {
     /** Every migration, oldest first. Never edit a released one: add a new version. */
     static final List<String> SCRIPTS = List.of(
             "V1__panels.sql",
-            "V2__models_fits.sql");
+            "V2__models_fits.sql",
+            "V3__jobs.sql");
 
     /** PostgreSQL advisory lock key that serialises migration appliers (any fixed number unused elsewhere). */
     static final long LOCK_KEY = 727274;
