@@ -231,11 +231,12 @@ public final class App implements AutoCloseable {
     /** Stops HTTP (letting in-flight requests finish within the grace period), then the store. */
     @Override
     public void close() {
+        // first, so that a running job stops after its current step rather than going on while requests drain; it
+        // stays "running" in the store and is resumed at the next start (or by another instance)
+        fits.jobThread().shutdownNow();
         if (started) http.stop();
         fits.poller().shutdownNow();
         fits.background().shutdownNow();
-        // a running job stops after its current step and stays "running" in the store: it is resumed at the next start
-        fits.jobThread().shutdownNow();
         try {
             if (!fits.background().awaitTermination(config.shutdownGraceMs(), TimeUnit.MILLISECONDS)) {
                 LOG.warn("background fits did not stop within {} ms", config.shutdownGraceMs());

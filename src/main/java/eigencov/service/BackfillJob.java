@@ -84,6 +84,7 @@ public final class BackfillJob implements JobKind {
             if (known.isPresent()) {
                 r = known.get();
             } else {
+                ctx.checkRunning();
                 if (all == null) all = panels.loadWindow(spec.panel(), dates.get(dates.size() - 1), Integer.MAX_VALUE);
                 r = jobFits.ensure(req.model(), plan.specVersion(), d, all, job.id(), FitService.BACKFILL);
             }

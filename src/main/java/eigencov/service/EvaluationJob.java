@@ -236,6 +236,7 @@ public final class EvaluationJob implements JobKind {
             for (int i = 0; i < dates; i++) {
                 LocalDate t = plan.dates().get(i);
                 Optional<JobFits.Result> known = JobFits.classify(marks.get(t), version, job.id());
+                if (known.isEmpty()) ctx.checkRunning();
                 JobFits.Result r = known.isPresent() ? known.get() : jobFits.ensure(m.name(), version, t, all, job.id(), FitService.EVALUATION);
                 if (r.outcome() == JobFits.Outcome.FAILED) {
                     f.failed[a][i] = "model " + m.name() + ": fit " + r.fitId() + " failed: " + r.reason();

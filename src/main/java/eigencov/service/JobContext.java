@@ -73,6 +73,19 @@ public final class JobContext {
         observer.stepped(job.id(), done, job.total());
     }
 
+    /**
+     * Stops the run before its next expensive step when the job was cancelled meanwhile (or the process
+     * is stopping), so that what the job lists as done is all it stored.
+     *
+     * @throws JobStoppedException as {@link #progress}
+     */
+    public void checkRunning() {
+        if (Thread.currentThread().isInterrupted()) throw new JobStoppedException("job " + job.id() + " stopped: the process is stopping", false);
+        if (!JobRow.RUNNING.equals(jobs.state(job.id()).orElse(null))) {
+            throw new JobStoppedException("job " + job.id() + " is no longer running (cancelled)", true);
+        }
+    }
+
     /** Seconds left at this run's pace, or null before this run has done a step. */
     private Long eta(long now) {
         int steps = done - doneAtStart;

@@ -59,6 +59,18 @@ public final class JobRepository {
         }
     }
 
+    /** The job's state, or empty when there is no such job. */
+    public Optional<String> state(long id) {
+        try (Connection c = ds.getConnection(); PreparedStatement p = c.prepareStatement("SELECT state FROM job WHERE id = ?")) {
+            p.setLong(1, id);
+            try (ResultSet rs = p.executeQuery()) {
+                return rs.next() ? Optional.of(rs.getString(1)) : Optional.empty();
+            }
+        } catch (SQLException e) {
+            throw new StoreException("cannot read job " + id + ": " + e.getMessage(), e);
+        }
+    }
+
     /** Jobs newest first (by id), of one kind or (null) all, without their results; at most {@code limit}. */
     public List<JobRow> list(String kind, int limit) {
         String sql = "SELECT " + BRIEF + " FROM job" + (kind == null ? "" : " WHERE kind = ?") + " ORDER BY id DESC FETCH FIRST "
