@@ -236,6 +236,33 @@ class JobsTest {
         assertNull(again.evaluations.get(repeat).error());
     }
 
+    @Test
+    void an_evaluations_forecasts_are_the_fits_a_post_as_of_makes() {
+        List<LocalDate> dates = fx.panel("p", 12, 80, 7);
+        ModelSpec spec = new ModelSpec("p", 40, new ModelSpec.Factors("bai-ng", null, null, 4), 15.0, 0.9, "correlation", null, null, null);
+        fx.models.put("a", spec);
+        fx.models.put("twin", spec);
+        long id = fx.evaluations.submit(new EvaluationRequest(List.of("a"), dates.get(40), dates.get(70), "week", 1, null, null)).id();
+        assertTrue(fx.runner.run(id));
+        EvaluationView v = fx.evaluations.get(id);
+        assertEquals("done", v.state(), String.valueOf(v.error()));
+        for (JsonNode d : v.dates()) {
+            LocalDate t = LocalDate.parse(d.asText());
+            long made = attempts(fx, "a", List.of(t)).get(t).get(0).fitId();
+            eigencov.math.FactorModel evaluated = fx.fits.stored(made).model();
+            fx.fits.fit("twin", t, FitService.REQUEST);
+            eigencov.math.FactorModel asked = fx.served.resolve("twin", t, null).result().model();
+            assertEquals(asked.tickers(), evaluated.tickers(), "universe at " + t);
+            assertEquals(asked.factors(), evaluated.factors(), "k at " + t);
+            // the same numbers (a factor's sign may differ with the alignment history; B F B' does not)
+            org.junit.jupiter.api.Assertions.assertArrayEquals(asked.specificVariances(), evaluated.specificVariances(), "D at " + t);
+            org.junit.jupiter.api.Assertions.assertArrayEquals(asked.factorCovariance(), evaluated.factorCovariance(), "F at " + t);
+            double[] a = asked.exposures();
+            double[] e = evaluated.exposures();
+            for (int i = 0; i < a.length; i++) assertEquals(Math.abs(a[i]), Math.abs(e[i]), 0.0, "|B| at " + t);
+        }
+    }
+
     private static List<String> texts(JsonNode array) {
         List<String> out = new ArrayList<>();
         array.forEach(n -> out.add(n.asText()));
