@@ -93,6 +93,32 @@ step "Inverse of the covariance (precision matrix), by Woodbury on the factor fo
 step "Minimum-variance weights of a ticker list (fully invested, unconstrained) and their volatility" \
     -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/minimum-variance" -d '{"tickers":'"$TICKERS"',"scale":"annual"}'
 
-step "Clean up the tour's own model" -X DELETE "$URL/v1/models/tour-6m"
+# Long work runs as jobs: stored, run in the background by one instance, resumed after a restart.
+step "A range backfill is a job: 202 with the job and Location: /v1/jobs/{id} (one fit per last trading date of each week)" \
+    -X POST "${JSON[@]}" "$URL/v1/models/tour-6m/fits" -d '{"from":"2026-09-01","to":"2026-11-27","every":"week"}'
+JOB_ID=$(curl -sS "${AUTH[@]}" "$URL/v1/jobs" | sed -n 's/^{"jobs":\[{"id":\([0-9]*\).*/\1/p' || true)
+step "Its progress (done, total, etaSeconds) and what it did: fits made, dates skipped, failed dates with the reason" \
+    "$URL/v1/jobs/${JOB_ID:-1}"
+step "The same range again: every date is skipped (already fitted with this spec version)" \
+    -X POST "${JSON[@]}" "$URL/v1/models/tour-6m/fits" -d '{"from":"2026-09-01","to":"2026-11-27","every":"week"}'
+
+step "Evaluations: the demo's first start evaluated both demo models next to two baselines" "$URL/v1/evaluations"
+DEMO_EVAL=$(curl -sS "${AUTH[@]}" "$URL/v1/evaluations" | sed -n 's/.*{"id":\([0-9]*\),"state":"done".*/\1/p' || true)
+step "Its results: bias statistic b (1 = right; band = its 95 % range), QLIKE, log-likelihood, minimum-variance volatility" \
+    "$URL/v1/evaluations/${DEMO_EVAL:-3}"
+step "Start one of your own: 202, Location: /v1/evaluations/{id}" \
+    -X POST "${JSON[@]}" "$URL/v1/evaluations" \
+    -d '{"models":["tour-6m","'"$MODEL"'"],"from":"2026-09-01","to":"2026-11-20","every":"week","horizonDays":5,"random":{"count":20,"names":30},"baselines":["ledoit-wolf"]}'
+EVAL_ID=$(curl -sS "${AUTH[@]}" "$URL/v1/evaluations" | sed -n 's/^{"evaluations":\[{"id":\([0-9]*\).*/\1/p' || true)
+step "Watch its progress" "$URL/v1/jobs/${EVAL_ID:-1}"
+for _ in $(seq 1 120); do
+    curl -sS "${AUTH[@]}" "$URL/v1/jobs/${EVAL_ID:-1}" | grep -q '"state":"\(done\|failed\|cancelled\)"' && break
+    sleep 0.5
+done
+step "Read it once done" "$URL/v1/evaluations/${EVAL_ID:-1}"
+step "Its per-date series as CSV: z of the equal portfolio, minimum-variance return and forecast volatility" \
+    -H 'Accept: text/csv' "$URL/v1/evaluations/${EVAL_ID:-1}/series"
+
+step "Clean up the tour's own model (its jobs stay listed)" -X DELETE "$URL/v1/models/tour-6m"
 echo
 echo "Tour done. Every query answer names the fit it used in \"fit\"."

@@ -2,17 +2,24 @@ package eigencov.app;
 
 import com.fasterxml.jackson.databind.ObjectMapper;
 import eigencov.http.ApiKeys;
+import eigencov.http.EvaluationRoutes;
 import eigencov.http.HttpApi;
+import eigencov.http.JobRoutes;
 import eigencov.http.MetricsRoutes;
 import eigencov.http.ModelRoutes;
 import eigencov.http.PanelRoutes;
 import eigencov.http.RouteModule;
 import eigencov.math.FactorFitter;
 import eigencov.math.Kernels;
+import eigencov.service.BackfillService;
+import eigencov.service.EvaluationService;
 import eigencov.service.FitCodec;
 import eigencov.service.FitLookup;
 import eigencov.service.FitService;
 import eigencov.service.IngestListener;
+import eigencov.service.JobKinds;
+import eigencov.service.JobRunner;
+import eigencov.service.JobService;
 import eigencov.service.ModelService;
 import eigencov.service.PanelService;
 import eigencov.service.RefitScheduler;
@@ -21,6 +28,8 @@ import eigencov.http.QueryRoutes;
 import eigencov.service.QueryService;
 import eigencov.store.Database;
 import eigencov.store.FitRepository;
+import eigencov.store.JobRepository;
+import eigencov.store.JobRow;
 import eigencov.store.ModelRepository;
 import eigencov.store.PanelStore;
 import eigencov.store.RefitLocks;
@@ -63,11 +72,11 @@ public final class App implements AutoCloseable {
     }
 
     /**
-     * The fit side of the wiring: serving snapshots, fitting, scheduling, their background threads, the
-     * poller that picks up other instances' fits, and the pool the fitter splits its kernels over.
+     * The fit side of the wiring: serving snapshots, fitting, scheduling, jobs, their background threads,
+     * the poller that picks up other instances' fits, and the pool the fitter splits its kernels over.
      */
-    private record Fits(ServedFits served, RefitScheduler scheduler, ScheduledExecutorService background,
-                        ScheduledExecutorService poller, ExecutorService kernels) {
+    private record Fits(ServedFits served, RefitScheduler scheduler, JobService jobs, ScheduledExecutorService background,
+                        ScheduledExecutorService jobThread, ScheduledExecutorService poller, ExecutorService kernels) {
     }
 
     /** Threads the fitter's kernels (Gram product, tridiagonalisation, EM products) are split over: the machine's 2 cores. */
@@ -101,6 +110,7 @@ public final class App implements AutoCloseable {
             throw e;
         }
         ScheduledExecutorService background = null;
+        ScheduledExecutorService jobThread = null;
         ExecutorService kernels = null;
         // Its own thread: refits can keep both background threads busy for minutes, and other
         // instances' fits must still be picked up within FIT_POLL_SECONDS.
@@ -117,19 +127,34 @@ public final class App implements AutoCloseable {
             FitService fitService = new FitService(modelRepo, fitRepo, panelStore, served, new FitCodec(mapper), new FactorFitter(kernels), mapper, clock, metrics);
             ModelService modelService = new ModelService(modelRepo, fitRepo, panelStore, served, mapper, clock);
             background = Executors.newScheduledThreadPool(2, daemonThreads("eigencov-refit-"));
-            RefitScheduler scheduler = new RefitScheduler(modelRepo, fitRepo, new RefitLocks(db), fitService, metrics, background, clock,
+            // one claim registry per model for scheduled refits and jobs' fits alike (on H2 it is in-process)
+            RefitLocks modelClaims = new RefitLocks(db);
+            RefitScheduler scheduler = new RefitScheduler(modelRepo, fitRepo, modelClaims, fitService, metrics, background, clock,
                     RefitScheduler.DEFAULT_TICK);
+            // jobs run one at a time on their own thread, so a long evaluation never holds up scheduled refits
+            jobThread = Executors.newSingleThreadScheduledExecutor(daemonThreads("eigencov-job-"));
+            JobRepository jobRepo = new JobRepository(db.dataSource());
+            JobRunner runner = new JobRunner(jobRepo, RefitLocks.forJobs(db),
+                    JobKinds.create(fitService, fitRepo, modelRepo, panelStore, modelClaims, mapper, kernels), jobThread, clock,
+                    JobRunner.DEFAULT_POLL, JobRunner.Observer.NONE);
+            JobService jobs = new JobService(jobRepo, runner, clock);
+            metrics.jobCounts(JobRow.STATES, runner.kinds().keySet(), jobRepo::counts);
+            BackfillService backfills = new BackfillService(modelRepo, panelStore, jobs, mapper);
+            EvaluationService evaluations = new EvaluationService(modelRepo, panelStore, jobs, mapper);
             PanelService panels = new PanelService(panelStore, config.maxAbsReturn(), scheduler, metrics);
             modules.add(new PanelRoutes(panels, config.maxBodyBytes(), mapper.getFactory()));
-            modules.add(new ModelRoutes(modelService, fitService));
+            modules.add(new ModelRoutes(modelService, fitService, backfills));
+            modules.add(new JobRoutes(jobs));
+            modules.add(new EvaluationRoutes(evaluations, mapper));
             modules.add(new QueryRoutes(new QueryService(queryFits != null ? queryFits : served), mapper, config.maxBodyBytes()));
             modules.add(new MetricsRoutes(metrics::scrape, Metrics.CONTENT_TYPE));
             Javalin http = HttpApi.create(config.bindHost(), config.port(), config.maxBodyBytes(), config.shutdownGraceMs(),
                     config.slowRequestMs(), mapper, db::isReachable, ApiKeys.parse(config.apiKeys()), modules, metrics::httpRequest);
-            if (config.demo()) new DemoLoader(config.demoDir(), panels, panelStore, modelService, fitService, mapper).load();
-            return new App(config, db, metrics, http, new Fits(served, scheduler, background, poller, kernels));
+            if (config.demo()) new DemoLoader(config.demoDir(), panels, panelStore, modelService, backfills, evaluations, jobs, mapper).load();
+            return new App(config, db, metrics, http, new Fits(served, scheduler, jobs, background, jobThread, poller, kernels));
         } catch (RuntimeException e) {
             if (background != null) background.shutdownNow();
+            if (jobThread != null) jobThread.shutdownNow();
             if (kernels != null) kernels.shutdownNow();
             poller.shutdownNow();
             db.close();
@@ -150,6 +175,7 @@ public final class App implements AutoCloseable {
     /** Starts serving and the background refits; returns this for chaining. */
     public App start() {
         fits.scheduler().start();
+        fits.jobs().runner().start();
         fits.poller().scheduleWithFixedDelay(this::pollFits, FIT_POLL_SECONDS, FIT_POLL_SECONDS, TimeUnit.SECONDS);
         http.start();
         started = true;
@@ -184,6 +210,11 @@ public final class App implements AutoCloseable {
         return fits.served();
     }
 
+    /** Stored jobs (range backfills, evaluations): list, read, cancel, and wait for one. */
+    public JobService jobs() {
+        return fits.jobs();
+    }
+
     /** For the ingest service: told after each committed batch, it starts the fits that follow an ingest. */
     public IngestListener ingestListener() {
         return fits.scheduler();
@@ -200,12 +231,18 @@ public final class App implements AutoCloseable {
     /** Stops HTTP (letting in-flight requests finish within the grace period), then the store. */
     @Override
     public void close() {
+        // first, so that a running job stops after its current step rather than going on while requests drain; it
+        // stays "running" in the store and is resumed at the next start (or by another instance)
+        fits.jobThread().shutdownNow();
         if (started) http.stop();
         fits.poller().shutdownNow();
         fits.background().shutdownNow();
         try {
             if (!fits.background().awaitTermination(config.shutdownGraceMs(), TimeUnit.MILLISECONDS)) {
                 LOG.warn("background fits did not stop within {} ms", config.shutdownGraceMs());
+            }
+            if (!fits.jobThread().awaitTermination(config.shutdownGraceMs(), TimeUnit.MILLISECONDS)) {
+                LOG.warn("the running job did not stop within {} ms; it is resumed at the next start", config.shutdownGraceMs());
             }
         } catch (InterruptedException e) {
             Thread.currentThread().interrupt();

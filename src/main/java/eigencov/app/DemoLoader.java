@@ -2,15 +2,19 @@ package eigencov.app;
 
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
-import eigencov.service.FitService;
-import eigencov.service.FitView;
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import eigencov.service.BackfillService;
+import eigencov.service.EvaluationRequest;
+import eigencov.service.EvaluationService;
 import eigencov.service.IngestResult;
+import eigencov.service.JobService;
+import eigencov.service.JobView;
 import eigencov.service.ModelService;
 import eigencov.service.ModelSpec;
 import eigencov.service.ModelView;
 import eigencov.service.PanelService;
 import eigencov.service.ReturnsFormat;
-import eigencov.store.FitRow;
+import eigencov.service.Spacing;
 import eigencov.store.PanelStore;
 import eigencov.store.PanelSummary;
 import org.slf4j.Logger;
@@ -22,11 +26,12 @@ import java.io.InputStream;
 import java.io.UncheckedIOException;
 import java.nio.file.Files;
 import java.nio.file.Path;
+import java.time.Duration;
 import java.time.LocalDate;
-import java.time.YearMonth;
 import java.util.ArrayList;
 import java.util.HashSet;
 import java.util.List;
+import java.util.Locale;
 import java.util.Optional;
 import java.util.Set;
 import java.util.zip.GZIPInputStream;
@@ -37,27 +42,39 @@ import java.util.zip.GZIPInputStream;
  * (gzip CSV {@code date,ticker,value}), loaded through the same {@link PanelService#ingest} as an
  * HTTP upload. Then it creates the models of {@code models.json} (field {@code "models"}: name and
  * PUT body) and backfills each with a fit at every month end that has a full window
- * ({@code "backfill": "monthly"}), so {@code asOf} queries work at once. Each step is skipped when
- * its result is already in the store, so restarts with {@code --demo} change nothing.
+ * ({@code "backfill": "monthly"}) as a range backfill job, so {@code asOf} queries work at once.
+ * Last, when {@code models.json} has an {@code "evaluation"} (an evaluation request without
+ * {@code models}, {@code from} and {@code to}, plus {@code lookbackDays}), it evaluates all the demo
+ * models over the last {@code lookbackDays} calendar days where every model has a full window. The
+ * jobs run on the calling thread and log their progress. Each step is skipped when its result is
+ * already in the store, so restarts with {@code --demo} change nothing (a job a killed first start
+ * left unfinished is resumed by the job runner).
  */
 final class DemoLoader {
     private static final Logger LOG = LoggerFactory.getLogger(DemoLoader.class);
     static final String MODELS_FILE = "models.json";
     static final String RETURNS_FILE = "returns.csv.gz";
+    /** Longest wait for a demo job that another thread or instance runs. */
+    private static final Duration JOB_WAIT = Duration.ofHours(1);
 
     private final Path dir;
     private final PanelService panels;
     private final PanelStore panelStore;
     private final ModelService models;
-    private final FitService fits;
+    private final BackfillService backfills;
+    private final EvaluationService evaluations;
+    private final JobService jobs;
     private final ObjectMapper mapper;
 
-    DemoLoader(Path dir, PanelService panels, PanelStore panelStore, ModelService models, FitService fits, ObjectMapper mapper) {
+    DemoLoader(Path dir, PanelService panels, PanelStore panelStore, ModelService models, BackfillService backfills,
+               EvaluationService evaluations, JobService jobs, ObjectMapper mapper) {
         this.dir = dir;
         this.panels = panels;
         this.panelStore = panelStore;
         this.models = models;
-        this.fits = fits;
+        this.backfills = backfills;
+        this.evaluations = evaluations;
+        this.jobs = jobs;
         this.mapper = mapper;
     }
 
@@ -71,10 +88,11 @@ final class DemoLoader {
         String backfill = manifest.path("backfill").asText("monthly");
         if (!backfill.equals("monthly")) throw new IllegalStateException(dir.resolve(MODELS_FILE) + ": backfill must be \"monthly\", was " + backfill);
         int made = loadModels(panel, manifest.path("models"));
-        LOG.info("demo: ready in {} ms ({} fits made)", (System.nanoTime() - started) / 1_000_000, made);
+        if (manifest.has("evaluation")) evaluate(panel, manifest.path("models"), manifest.path("evaluation"));
+        LOG.info("demo: ready in {} ms ({} fits made by the backfills)", (System.nanoTime() - started) / 1_000_000, made);
     }
 
-    /** Creates each demo model that does not exist yet and backfills its monthly fits; returns the fits made. */
+    /** Creates each demo model that does not exist yet and backfills its month ends; returns the fits made. */
     int loadModels(String panel, JsonNode list) {
         List<LocalDate> dates = panelStore.dates(panel, null, null);
         Set<String> existing = new HashSet<>();
@@ -91,24 +109,81 @@ final class DemoLoader {
                 throw new IllegalStateException(dir.resolve(MODELS_FILE) + ": spec of model " + name + " is invalid: " + e.getMessage(), e);
             }
             models.put(name, spec);
+            if (dates.size() < spec.windowDays()) {
+                LOG.warn("demo: model {} needs {} dates, the panel has {}: no backfill", name, spec.windowDays(), dates.size());
+                continue;
+            }
             long started = System.nanoTime();
-            List<FitView> done = fits.backfill(name, monthEnds(dates, spec.windowDays()));
-            long ok = done.stream().filter(f -> f.status().equals(FitRow.OK)).count();
-            made += done.size();
-            LOG.info("demo: model {} backfilled with {} monthly fits ({} failed) in {} ms", name, ok, done.size() - ok,
+            JobView job = backfills.submit(name, dates.get(spec.windowDays() - 1), dates.get(dates.size() - 1), Spacing.MONTH.apiName());
+            JobView done = runToEnd(job.id());
+            made += ((List<?>) done.kindFields().get("fits")).size();
+            LOG.info("demo: model {} backfilled by job {} ({}): {} monthly fits, {} failed, in {} ms", name, job.id(), done.state(),
+                    ((List<?>) done.kindFields().get("fits")).size(), ((List<?>) done.kindFields().get("failed")).size(),
                     (System.nanoTime() - started) / 1_000_000);
         }
         return made;
     }
 
-    /** The last date of each month in {@code dates} (ascending) with at least {@code windowDays} dates up to it. */
-    static List<LocalDate> monthEnds(List<LocalDate> dates, int windowDays) {
-        List<LocalDate> out = new ArrayList<>();
-        for (int i = Math.max(windowDays, 1) - 1; i < dates.size(); i++) {
-            LocalDate d = dates.get(i);
-            if (i == dates.size() - 1 || !YearMonth.from(dates.get(i + 1)).equals(YearMonth.from(d))) out.add(d);
+    /**
+     * Evaluates every demo model, unless an evaluation exists already: over the last {@code lookbackDays}
+     * calendar days of the panel from the first date where every model has a full window.
+     */
+    void evaluate(String panel, JsonNode list, JsonNode evaluation) {
+        if (!evaluations.list().isEmpty()) return;
+        List<LocalDate> dates = panelStore.dates(panel, null, null);
+        List<String> names = new ArrayList<>();
+        int window = 1;
+        for (JsonNode entry : list) {
+            names.add(entry.path("name").asText());
+            window = Math.max(window, entry.path("spec").path("windowDays").asInt(1));
         }
-        return out;
+        if (dates.size() < window) return;
+        LocalDate to = dates.get(dates.size() - 1);
+        LocalDate from = to.minusDays(evaluation.path("lookbackDays").asLong(365));
+        if (from.isBefore(dates.get(window - 1))) from = dates.get(window - 1);
+        ObjectNode request = evaluation.deepCopy();
+        request.remove("lookbackDays");
+        request.set("models", mapper.valueToTree(names));
+        request.put("from", from.toString());
+        request.put("to", to.toString());
+        EvaluationRequest r;
+        try {
+            r = mapper.treeToValue(request, EvaluationRequest.class);
+        } catch (IOException e) {
+            throw new IllegalStateException(dir.resolve(MODELS_FILE) + ": evaluation is invalid: " + e.getMessage(), e);
+        }
+        long started = System.nanoTime();
+        JobView job = evaluations.submit(r);
+        JobView done = runToEnd(job.id());
+        LOG.info("demo: evaluation {} of {} from {} to {} {} in {} ms", job.id(), names, from, to, done.state(),
+                (System.nanoTime() - started) / 1_000_000);
+        for (JsonNode e : evaluations.get(job.id()).results()) LOG.info("demo: evaluation {}: {}", job.id(), headline(e));
+    }
+
+    /** One result in a line: equal-portfolio bias and band, single names inside their band, minimum-variance volatility. */
+    static String headline(JsonNode e) {
+        JsonNode f = e.path("families");
+        JsonNode eq = f.path("equal");
+        JsonNode mv = f.path("minimum-variance");
+        return String.format(Locale.ROOT, "%s%s: equal bias %.3f (band %.3f-%.3f, n %d), single names inside %.0f %%, "
+                        + "minimum-variance volatility %s, log-likelihood %s",
+                e.path("model").asText(), e.has("baseline") ? " / " + e.path("baseline").asText() : "", eq.path("bias").asDouble(),
+                eq.path("band").path(0).asDouble(), eq.path("band").path(1).asDouble(), eq.path("n").asInt(),
+                100 * f.path("single").path("insideBand").asDouble(),
+                mv.isNull() || mv.isMissingNode() ? "n/a" : String.format(Locale.ROOT, "%.1f %%", 100 * mv.path("realisedVolatility").asDouble()),
+                e.path("logLikelihood").isNumber() ? String.format(Locale.ROOT, "%.1f", e.path("logLikelihood").asDouble()) : "n/a");
+    }
+
+    /** Runs the job here (or, when another thread holds it, waits for it) and returns it finished. */
+    private JobView runToEnd(long id) {
+        jobs.runner().run(id);
+        try {
+            jobs.runner().awaitFinished(id, JOB_WAIT).orElseThrow(() -> new IllegalStateException("demo job " + id + " did not finish"));
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+            throw new IllegalStateException("interrupted while waiting for demo job " + id, e);
+        }
+        return jobs.get(id);
     }
 
     /** The parsed {@code models.json}. */

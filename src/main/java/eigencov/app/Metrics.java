@@ -3,6 +3,8 @@ package eigencov.app;
 import com.zaxxer.hikari.metrics.MetricsTrackerFactory;
 import com.zaxxer.hikari.metrics.micrometer.MicrometerMetricsTrackerFactory;
 import eigencov.service.ServiceMetrics;
+import eigencov.store.JobRepository;
+import io.micrometer.core.instrument.Gauge;
 import io.micrometer.core.instrument.Counter;
 import io.micrometer.core.instrument.MeterRegistry;
 import io.micrometer.core.instrument.Timer;
@@ -16,7 +18,12 @@ import io.micrometer.prometheusmetrics.PrometheusConfig;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
 
 import java.time.Duration;
+import java.util.Collection;
+import java.util.HashMap;
+import java.util.List;
 import java.util.Locale;
+import java.util.Map;
+import java.util.function.Supplier;
 import java.util.concurrent.ConcurrentHashMap;
 import java.util.concurrent.TimeUnit;
 
@@ -34,6 +41,7 @@ import java.util.concurrent.TimeUnit;
  * <li>{@code eigencov_fit_failures_total} by {@code model}, {@code reason} (a short category)</li>
  * <li>{@code eigencov_refit_claims_total} by {@code model}, {@code outcome} ({@code won}: this instance
  *     runs the scheduled refit; {@code taken}: another instance holds it)</li>
+ * <li>{@code eigencov_jobs} by {@code state}, {@code kind}: stored jobs of every instance, counted in the store</li>
  * <li>{@code hikaricp_connections_*} pool usage and acquire times (HikariCP's own tracker)</li>
  * <li>{@code jvm_*}, {@code process_*}, {@code system_*}: memory, GC, threads, classes, CPU, uptime</li>
  * </ul>
@@ -134,6 +142,52 @@ public final class Metrics implements ServiceMetrics, AutoCloseable {
     public void refitClaim(String model, boolean won) {
         Counter.builder("eigencov.refit.claims").description("scheduled refit claims on the shared store")
                 .tags("model", model, "outcome", won ? "won" : "taken").register(registry).increment();
+    }
+
+    /** The store is asked for job counts at most this often, however often /metrics is scraped. */
+    static final Duration JOB_COUNTS_MAX_AGE = Duration.ofSeconds(1);
+
+    /**
+     * Gauges {@code eigencov_jobs{state, kind}} of the stored jobs, one per state and kind (so a series
+     * exists at 0 before any job of it), read from {@code counts} when scraped (at most once a second).
+     * A store that cannot be asked gives NaN.
+     */
+    public void jobCounts(Collection<String> states, Collection<String> kinds, Supplier<List<JobRepository.Count>> counts) {
+        JobCounts snapshot = new JobCounts(counts);
+        for (String state : states) {
+            for (String kind : kinds) {
+                Gauge.builder("eigencov.jobs", snapshot, s -> s.get(state, kind)).description("stored jobs by state and kind")
+                        .tags("state", state, "kind", kind).strongReference(true).register(registry);
+            }
+        }
+    }
+
+    /** The last job counts read, re-read when older than {@link #JOB_COUNTS_MAX_AGE}. */
+    private static final class JobCounts {
+        private final Supplier<List<JobRepository.Count>> source;
+        private Map<String, Long> counts = Map.of();
+        private long readAt;
+        private boolean failed;
+
+        JobCounts(Supplier<List<JobRepository.Count>> source) {
+            this.source = source;
+        }
+
+        synchronized double get(String state, String kind) {
+            long now = System.nanoTime();
+            if (readAt == 0 || now - readAt > JOB_COUNTS_MAX_AGE.toNanos()) {
+                readAt = now;
+                try {
+                    Map<String, Long> m = new HashMap<>();
+                    for (JobRepository.Count c : source.get()) m.put(c.state() + "/" + c.kind(), c.jobs());
+                    counts = m;
+                    failed = false;
+                } catch (RuntimeException e) {
+                    failed = true;
+                }
+            }
+            return failed ? Double.NaN : counts.getOrDefault(state + "/" + kind, 0L);
+        }
     }
 
     static String category(String reason) {

@@ -2,8 +2,10 @@ package eigencov.http;
 
 import com.fasterxml.jackson.databind.DeserializationFeature;
 import com.fasterxml.jackson.databind.ObjectReader;
+import eigencov.service.BackfillService;
 import eigencov.service.FitService;
 import eigencov.service.InvalidInputException;
+import eigencov.service.JobView;
 import eigencov.service.ModelService;
 import eigencov.service.ModelSpec;
 import io.javalin.config.RoutesConfig;
@@ -15,7 +17,8 @@ import java.util.Map;
 
 /**
  * Model specs and fits: {@code PUT/GET/DELETE /v1/models/{model}}, {@code GET /v1/models},
- * {@code POST/GET /v1/models/{model}/fits}, {@code GET /v1/models/{model}/fits/{id}}.
+ * {@code POST/GET /v1/models/{model}/fits}, {@code GET /v1/models/{model}/fits/{id}}. A POST of fits
+ * with {@code from}, {@code to} and {@code every} starts a range backfill job (202, design.md section 6).
  */
 public final class ModelRoutes implements RouteModule {
     /**
@@ -26,14 +29,22 @@ public final class ModelRoutes implements RouteModule {
             .without(DeserializationFeature.ACCEPT_FLOAT_AS_INT);
     private final ModelService models;
     private final FitService fits;
+    private final BackfillService backfills;
 
-    public ModelRoutes(ModelService models, FitService fits) {
+    public ModelRoutes(ModelService models, FitService fits, BackfillService backfills) {
         this.models = models;
         this.fits = fits;
+        this.backfills = backfills;
     }
 
-    /** Body of {@code POST .../fits}: optional asOf (backfill); empty body = fit now. */
-    record FitRequest(LocalDate asOf) {
+    /**
+     * Body of {@code POST .../fits}: optional asOf (one fit as of that date), or from, to and every (a
+     * range backfill job); empty body = fit now.
+     */
+    record FitRequest(LocalDate asOf, LocalDate from, LocalDate to, String every) {
+        boolean range() {
+            return from != null || to != null || every != null;
+        }
     }
 
     @Override
@@ -58,16 +69,27 @@ public final class ModelRoutes implements RouteModule {
     }
 
     private void fit(Context ctx) {
-        LocalDate asOf = ctx.body().isBlank() ? null : ctx.bodyAsClass(FitRequest.class).asOf();
-        ctx.status(201).json(fits.fit(ctx.pathParam("model"), asOf, FitService.REQUEST));
+        FitRequest r = ctx.body().isBlank() ? null : ctx.bodyAsClass(FitRequest.class);
+        if (r != null && r.range()) {
+            if (r.asOf() != null) throw InvalidInputException.field("asOf", "give asOf (one fit) or from, to and every (a range backfill), not both");
+            JobView job = backfills.submit(ctx.pathParam("model"), r.from(), r.to(), r.every());
+            ctx.status(202).header("Location", job.links().get("self")).json(job);
+            return;
+        }
+        ctx.status(201).json(fits.fit(ctx.pathParam("model"), r == null ? null : r.asOf(), FitService.REQUEST));
     }
 
     private static long fitId(Context ctx) {
-        String s = ctx.pathParam("id");
+        return wholeNumber(ctx, "id", "fit");
+    }
+
+    /** Path parameter {@code name} as a whole number; a 400 naming it otherwise. */
+    static long wholeNumber(Context ctx, String name, String what) {
+        String s = ctx.pathParam(name);
         try {
             return Long.parseLong(s);
         } catch (NumberFormatException e) {
-            throw InvalidInputException.field("id", "fit ids are whole numbers, was '" + s + "'");
+            throw InvalidInputException.field(name, what + " ids are whole numbers, was '" + s + "'");
         }
     }
 }

@@ -15,7 +15,7 @@ package eigencov.math;
  * every fit: its eigenvalues are the kept, non-zero ones); otherwise the constructor throws
  * {@link SingularCovarianceException} naming the positions.
  */
-public final class FactorInverse {
+public final class FactorInverse implements CovarianceInverse {
 
     private final int n;
     private final int k;
@@ -112,11 +112,13 @@ public final class FactorInverse {
     }
 
     /** Number of names n. */
+    @Override
     public int size() {
         return n;
     }
 
     /** {@code ln|C|}. */
+    @Override
     public double logDeterminant() {
         return logDet;
     }
@@ -141,6 +143,7 @@ public final class FactorInverse {
     }
 
     /** {@code x' C^-1 x}, never negative apart from rounding. O(n k). */
+    @Override
     public double quadraticForm(double[] x) {
         checkLength(x, "x");
         double[] t = new double[k];
@@ -161,17 +164,14 @@ public final class FactorInverse {
      * The fully invested minimum-variance portfolio {@code w = budget C^-1 1 / (1' C^-1 1)} written to
      * {@code weights}; returns its variance {@code budget^2 / (1' C^-1 1)}.
      */
+    @Override
     public double minimumVariance(double budget, double[] weights) {
         checkLength(weights, "weights");
         if (!Double.isFinite(budget)) throw new IllegalArgumentException("budget must be finite, was " + budget);
         double[] ones = new double[n];
         java.util.Arrays.fill(ones, 1.0);
         solve(ones, weights);
-        double total = 0;
-        for (int a = 0; a < n; a++) total += weights[a];
-        double f = budget / total;
-        for (int a = 0; a < n; a++) weights[a] *= f;
-        return budget * budget / total;
+        return CovarianceInverse.fullyInvested(budget, weights);
     }
 
     /**

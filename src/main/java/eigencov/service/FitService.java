@@ -35,6 +35,8 @@ public final class FitService {
     public static final String BACKFILL = "backfill";
     public static final String SCHEDULE = "schedule";
     public static final String INGEST = "ingest";
+    /** A fit an evaluation needed and did not find stored. */
+    public static final String EVALUATION = "evaluation";
 
     private final ModelRepository models;
     private final FitRepository fits;
@@ -80,7 +82,7 @@ public final class FitService {
             ModelRow m = models.find(model).orElseThrow(() -> new NotFoundException("model", model));
             ModelSpec spec = ModelService.readSpec(mapper, m);
             LocalDate date = asOf == null ? LocalDate.now(clock) : asOf;
-            return fitOne(m, spec, date, origin, () -> windows.loadWindow(spec.panel(), date, spec.windowDays()));
+            return fitOne(m, spec, date, origin, () -> windows.loadWindow(spec.panel(), date, spec.windowDays()), null).view();
         } finally {
             lock.unlock();
         }
@@ -105,7 +107,7 @@ public final class FitService {
             ReturnPanel all = windows.loadWindow(spec.panel(), dates.get(dates.size() - 1), Integer.MAX_VALUE);
             for (LocalDate d : dates) {
                 try {
-                    out.add(fitOne(m, spec, d, BACKFILL, () -> Windows.cut(all, d, spec.windowDays())));
+                    out.add(fitOne(m, spec, d, BACKFILL, () -> Windows.cut(all, d, spec.windowDays()), null).view());
                 } catch (FitFailedException e) {
                     out.add(get(model, e.fitId()));
                 }
@@ -116,9 +118,34 @@ public final class FitService {
         }
     }
 
-    private FitView fitOne(ModelRow m, ModelSpec spec, LocalDate date, String origin, Supplier<ReturnPanel> window) {
+    /** A stored fit and the engine's result it holds. */
+    record Made(FitRow row, FitResult result) {
+        FitView view() {
+            return FitView.detail(row, result);
+        }
+    }
+
+    /**
+     * Fits {@code m} (the stored row, spec version included) as of {@code date} on a window cut from
+     * {@code all}, for the job {@code jobId}: the same fit, alignment and publishing as
+     * {@link #fit(String, LocalDate, String)}, recorded with the job that made it. Fits of one model
+     * run one at a time in this process; across instances the caller holds the model's claim.
+     *
+     * @throws FitFailedException the data cannot support the fit (recorded as a failed attempt of the job)
+     */
+    Made fitForJob(ModelRow m, ModelSpec spec, LocalDate date, String origin, ReturnPanel all, long jobId) {
+        ReentrantLock lock = locks.computeIfAbsent(m.name(), k -> new ReentrantLock());
+        lock.lock();
+        try {
+            return fitOne(m, spec, date, origin, () -> Windows.cut(all, date, spec.windowDays()), jobId);
+        } finally {
+            lock.unlock();
+        }
+    }
+
+    private Made fitOne(ModelRow m, ModelSpec spec, LocalDate date, String origin, Supplier<ReturnPanel> window, Long jobId) {
         Instant created = ModelService.now(clock);
-        FitRepository.Attempt attempt = new FitRepository.Attempt(m.id(), origin, date, created, m.version(), m.specJson());
+        FitRepository.Attempt attempt = new FitRepository.Attempt(m.id(), origin, date, created, m.version(), m.specJson(), jobId);
         long t0 = System.nanoTime();
         Long loadMs = null;
         FitResult result;
@@ -139,6 +166,11 @@ public final class FitService {
             LOG.warn("fit {} of model {} as of {} failed: {}", failed.id(), m.name(), date, e.getMessage());
             throw new FitFailedException(failed.id(), m.name(), e.getMessage());
         } catch (RuntimeException e) {
+            if (Thread.currentThread().isInterrupted()) {
+                // Stopped from outside (the process is shutting down), not a property of the data: a job
+                // resumes this date later, and no failed attempt is recorded for it.
+                throw e;
+            }
             metrics.fitFailed(m.name(), "error");
             try {
                 fits.insertFailed(attempt, e.getClass().getSimpleName() + ": " + e.getMessage(), loadMs);
@@ -153,9 +185,23 @@ public final class FitService {
                 used.get(0), used.get(used.size() - 1), loadMs, computeMs), codec.toData(result));
         served.publish(new ServedFit(new FitRef(row.id(), m.name(), date, row.createdAt()), result));
         metrics.fitCompleted(m.name(), (System.nanoTime() - t0) / 1_000_000);
-        LOG.info("fit {} of model {} as of {}: k={} tickers={} dates={} load {} ms, compute {} ms, store {} ms", row.id(), m.name(), date,
-                row.factors(), row.tickers(), row.dates(), row.loadMs(), row.computeMs(), row.storeMs());
-        return FitView.detail(row, result);
+        // a job's fits are many and the job logs its progress: one line each only at DEBUG
+        if (jobId == null || LOG.isDebugEnabled()) {
+            String line = "fit {} of model {} as of {}: k={} tickers={} dates={} load {} ms, compute {} ms, store {} ms";
+            Object[] args = {row.id(), m.name(), date, row.factors(), row.tickers(), row.dates(), row.loadMs(), row.computeMs(), row.storeMs()};
+            if (jobId == null) LOG.info(line, args);
+            else LOG.debug(line, args);
+        }
+        return new Made(row, result);
+    }
+
+    /** The engine's result held by the stored ok fit {@code fitId}, read from the store (not the serving cache). */
+    FitResult stored(long fitId) {
+        return codec.toResult(fits.data(fitId).orElseThrow(() -> new IllegalStateException("fit " + fitId + " has no stored data")));
+    }
+
+    ObjectMapper mapper() {
+        return mapper;
     }
 
     /** Every attempt of the model, newest first. */

@@ -67,7 +67,7 @@ public final class ServedFits implements FitLookup {
         Optional<FitRow> row = fits.newest(model);
         if (row.isEmpty()) return Optional.empty();
         ServedFit loaded = load(row.get());
-        return Optional.of(publish(loaded));
+        return Optional.of(accumulate(loaded));
     }
 
     /**
@@ -77,6 +77,16 @@ public final class ServedFits implements FitLookup {
      * @return the fit served afterwards
      */
     public ServedFit publish(ServedFit fit) {
+        String model = fit.ref().model();
+        if (held(model) == null) {
+            // Nothing served here yet (first use since start): the store's newest fit comes first, so a
+            // backfilled fit of an earlier date never takes the place of a later one until the next refresh.
+            fits.newest(model).filter(r -> r.id() != fit.ref().id()).ifPresent(r -> accumulate(load(r)));
+        }
+        return accumulate(fit);
+    }
+
+    private ServedFit accumulate(ServedFit fit) {
         AtomicReference<ServedFit> ref = newest.computeIfAbsent(fit.ref().model(), k -> new AtomicReference<>());
         return ref.accumulateAndGet(fit, (cur, next) -> cur == null || isNewer(next.ref(), cur.ref()) ? next : cur);
     }
@@ -101,7 +111,7 @@ public final class ServedFits implements FitLookup {
             if (id == null) {
                 if (models.find(model).isEmpty()) forget(model);
             } else if (cur == null || cur.ref().id() != id) {
-                fits.find(id).filter(FitRow::ok).ifPresent(r -> publish(load(r)));
+                fits.find(id).filter(FitRow::ok).ifPresent(r -> accumulate(load(r)));
             }
         }
     }

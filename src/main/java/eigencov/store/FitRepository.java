@@ -36,8 +36,23 @@ public final class FitRepository {
         this.ds = ds;
     }
 
-    /** What a new attempt states about itself before it is stored. */
-    public record Attempt(long modelId, String origin, LocalDate asOf, Instant createdAt, int specVersion, String specJson) {
+    /**
+     * What a new attempt states about itself before it is stored.
+     *
+     * @param jobId the job that makes it (a range backfill, an evaluation), or null
+     */
+    public record Attempt(long modelId, String origin, LocalDate asOf, Instant createdAt, int specVersion, String specJson, Long jobId) {
+        /** An attempt outside any job. */
+        public Attempt(long modelId, String origin, LocalDate asOf, Instant createdAt, int specVersion, String specJson) {
+            this(modelId, origin, asOf, createdAt, specVersion, specJson, null);
+        }
+    }
+
+    /** One attempt at a date, as a job resuming or skipping work needs it. */
+    public record Mark(long fitId, String status, int specVersion, Long jobId, String reason) {
+        public boolean ok() {
+            return FitRow.OK.equals(status);
+        }
     }
 
     /** Figures of an ok fit, stored with its row. */
@@ -110,8 +125,8 @@ public final class FitRepository {
 
     private static long insertRow(Connection c, Attempt a, String status, String reason, Figures f) throws SQLException {
         try (PreparedStatement p = c.prepareStatement("INSERT INTO fit (model_id, status, origin, as_of, created_at, spec_version, "
-                + "spec_json, reason, factors, tickers, dates, window_from, window_to, load_ms, compute_ms) "
-                + "VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)", new String[] {"id"})) {
+                + "spec_json, reason, factors, tickers, dates, window_from, window_to, load_ms, compute_ms, job_id) "
+                + "VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)", new String[] {"id"})) {
             p.setLong(1, a.modelId());
             p.setString(2, status);
             p.setString(3, a.origin());
@@ -128,6 +143,7 @@ public final class FitRepository {
             p.setDate(13, ok ? Date.valueOf(f.windowTo()) : null);
             setLong(p, 14, f == null ? null : f.loadMs());
             setLong(p, 15, ok ? f.computeMs() : null);
+            setLong(p, 16, a.jobId());
             p.executeUpdate();
             try (ResultSet keys = p.getGeneratedKeys()) {
                 keys.next();
@@ -191,6 +207,52 @@ public final class FitRepository {
             }
         } catch (SQLException e) {
             throw new StoreException("cannot read fits of model " + modelId + ": " + e.getMessage(), e);
+        }
+    }
+
+    /**
+     * Every attempt of the model at each of {@code asOfs} (ascending by id within a date), in one read.
+     *
+     * @return date -> attempts; dates without any attempt are absent
+     */
+    public Map<LocalDate, List<Mark>> attemptsAt(long modelId, List<LocalDate> asOfs) {
+        Map<LocalDate, List<Mark>> out = new LinkedHashMap<>();
+        if (asOfs.isEmpty()) return out;
+        LocalDate from = asOfs.stream().min(LocalDate::compareTo).orElseThrow();
+        LocalDate to = asOfs.stream().max(LocalDate::compareTo).orElseThrow();
+        java.util.Set<LocalDate> wanted = new java.util.HashSet<>(asOfs);
+        try (Connection c = ds.getConnection();
+             PreparedStatement p = c.prepareStatement("SELECT id, as_of, status, spec_version, job_id, reason FROM fit "
+                     + "WHERE model_id = ? AND as_of BETWEEN ? AND ? ORDER BY as_of, id")) {
+            p.setLong(1, modelId);
+            p.setDate(2, Date.valueOf(from));
+            p.setDate(3, Date.valueOf(to));
+            try (ResultSet rs = p.executeQuery()) {
+                while (rs.next()) {
+                    LocalDate d = rs.getDate(2).toLocalDate();
+                    if (!wanted.contains(d)) continue;
+                    out.computeIfAbsent(d, k -> new ArrayList<>()).add(new Mark(rs.getLong(1), rs.getString(3), rs.getInt(4),
+                            longOrNull(rs, 5), rs.getString(6)));
+                }
+            }
+            return out;
+        } catch (SQLException e) {
+            throw new StoreException("cannot read fits of model " + modelId + ": " + e.getMessage(), e);
+        }
+    }
+
+    /** The universe of an ok fit, without its arrays. */
+    public Optional<List<String>> universe(long fitId) {
+        try (Connection c = ds.getConnection();
+             PreparedStatement p = c.prepareStatement("SELECT universe FROM fit_data WHERE fit_id = ?")) {
+            p.setLong(1, fitId);
+            try (ResultSet rs = p.executeQuery()) {
+                if (!rs.next()) return Optional.empty();
+                String universe = rs.getString(1);
+                return Optional.of(universe.isEmpty() ? List.of() : Arrays.asList(universe.split("\n")));
+            }
+        } catch (SQLException e) {
+            throw new StoreException("cannot read fit " + fitId + ": " + e.getMessage(), e);
         }
     }
 

@@ -29,6 +29,7 @@ final class Migrations {
     static final List<String> SCRIPTS = List.of(
             "V1__panels.sql",
             "V2__models_fits.sql",
+            "V3__jobs.sql",
             "V4__short_history.sql");
 
     /** PostgreSQL advisory lock key that serialises migration appliers (any fixed number unused elsewhere). */

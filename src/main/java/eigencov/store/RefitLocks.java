@@ -9,8 +9,8 @@ import java.util.Optional;
 import java.util.concurrent.ConcurrentHashMap;
 
 /**
- * Cluster-wide exclusive claims on a model's scheduled refit, so that of several instances sharing
- * one database exactly one runs it.
+ * Cluster-wide exclusive claims on a model's scheduled refit (or, from {@link #forJobs}, on a stored
+ * job), so that of several instances sharing one database exactly one runs it.
  *
  * <p>On PostgreSQL a claim is a session advisory lock ({@code pg_try_advisory_lock(ns, modelId)})
  * on a connection kept for as long as the claim is held. If the holder dies, PostgreSQL ends its
@@ -24,15 +24,35 @@ import java.util.concurrent.ConcurrentHashMap;
 public final class RefitLocks {
     /** First key of the two-key advisory lock: "ECOV" in ASCII, so our locks are easy to spot in pg_locks. */
     static final int NAMESPACE = 0x45434F56;
+    /** First key of the job claims: "ECOJ". */
+    static final int JOB_NAMESPACE = 0x45434F4A;
 
     private final DataSource ds;
+    private final int namespace;
+    /** What a claim is on, for messages. */
+    private final String what;
     private final Database.Dialect dialect;
     /** H2: the claims held in this process, each by its token (not reentrant: a second claim on a held model fails). */
     private final ConcurrentHashMap<Long, Object> local = new ConcurrentHashMap<>();
 
+    /** Claims on models' refits. */
     public RefitLocks(Database db) {
+        this(db, NAMESPACE, "the refit of model");
+    }
+
+    private RefitLocks(Database db, int namespace, String what) {
         this.ds = db.dataSource();
         this.dialect = db.dialect();
+        this.namespace = namespace;
+        this.what = what;
+    }
+
+    /**
+     * Claims on stored jobs (keyed by job id, in a namespace of their own): the holder runs the job;
+     * when it dies, the job is free for the next instance to resume.
+     */
+    public static RefitLocks forJobs(Database db) {
+        return new RefitLocks(db, JOB_NAMESPACE, "job");
     }
 
     /** A held claim; closing it releases the claim. */
@@ -42,13 +62,13 @@ public final class RefitLocks {
     }
 
     /**
-     * Claims the refit of {@code modelId} without waiting.
+     * Claims the refit of model {@code modelId} (or the job of that id, for {@link #forJobs} claims) without waiting.
      *
      * @return the claim, or empty when another holder has it
      * @throws StoreException when the database cannot be asked
      */
     public Optional<Claim> tryClaim(long modelId) {
-        if (modelId < 0 || modelId > Integer.MAX_VALUE) throw new IllegalArgumentException("modelId out of range: " + modelId);
+        if (modelId < 0 || modelId > Integer.MAX_VALUE) throw new IllegalArgumentException("id out of range: " + modelId);
         return dialect == Database.Dialect.POSTGRESQL ? tryAdvisory((int) modelId) : tryLocal(modelId);
     }
 
@@ -65,7 +85,7 @@ public final class RefitLocks {
             c.setAutoCommit(true);
             boolean won;
             try (PreparedStatement p = c.prepareStatement("SELECT pg_try_advisory_lock(?, ?)")) {
-                p.setInt(1, NAMESPACE);
+                p.setInt(1, namespace);
                 p.setInt(2, modelId);
                 try (ResultSet rs = p.executeQuery()) {
                     rs.next();
@@ -76,20 +96,22 @@ public final class RefitLocks {
                 c.close();
                 return Optional.empty();
             }
-            return Optional.of(new AdvisoryClaim(c, modelId));
+            return Optional.of(new AdvisoryClaim(c, namespace, modelId));
         } catch (SQLException e) {
             closeQuietly(c);
-            throw new StoreException("cannot claim the refit of model " + modelId + ": " + e.getMessage(), e);
+            throw new StoreException("cannot claim " + what + " " + modelId + ": " + e.getMessage(), e);
         }
     }
 
     private static final class AdvisoryClaim implements Claim {
         private final Connection c;
+        private final int namespace;
         private final int modelId;
         private boolean closed;
 
-        AdvisoryClaim(Connection c, int modelId) {
+        AdvisoryClaim(Connection c, int namespace, int modelId) {
             this.c = c;
+            this.namespace = namespace;
             this.modelId = modelId;
         }
 
@@ -98,7 +120,7 @@ public final class RefitLocks {
             if (closed) return;
             closed = true;
             try (PreparedStatement p = c.prepareStatement("SELECT pg_advisory_unlock(?, ?)")) {
-                p.setInt(1, NAMESPACE);
+                p.setInt(1, namespace);
                 p.setInt(2, modelId);
                 p.execute();
             } catch (SQLException e) {

@@ -17,6 +17,8 @@ import java.util.zip.GZIPOutputStream;
 
 import static io.restassured.RestAssured.given;
 import static org.hamcrest.Matchers.contains;
+import static org.hamcrest.Matchers.equalTo;
+import static org.hamcrest.Matchers.everyItem;
 import static org.hamcrest.Matchers.hasSize;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 
@@ -27,7 +29,9 @@ class DemoLoaderTest {
                                               "minCoverage": 0.9, "basis": "covariance", "refit": {"every": "PT24H"}}},
               {"name": "mini-long", "spec": {"panel": "mini", "windowDays": 80, "halfLifeDays": 30, "factors": {"rule": "fixed", "count": 2},
                                              "minCoverage": 0.9, "basis": "covariance"}}],
-             "backfill": "monthly"}
+             "backfill": "monthly",
+             "evaluation": {"lookbackDays": 365, "every": "week", "horizonDays": 5, "random": {"count": 5, "names": 4, "seed": 3},
+                            "baselines": ["sample", "ledoit-wolf"]}}
             """;
 
     /** Requests that close their connection, so that stopping the server does not wait out idle keep-alive connections. */
@@ -36,16 +40,8 @@ class DemoLoaderTest {
     }
 
     @Test
-    void month_ends_are_the_last_date_of_each_month_with_a_full_window() {
-        List<LocalDate> dates = List.of(LocalDate.of(2024, 1, 30), LocalDate.of(2024, 1, 31), LocalDate.of(2024, 2, 1),
-                LocalDate.of(2024, 2, 29), LocalDate.of(2024, 3, 1));
-        assertEquals(List.of(LocalDate.of(2024, 1, 31), LocalDate.of(2024, 2, 29), LocalDate.of(2024, 3, 1)), DemoLoader.monthEnds(dates, 1));
-        assertEquals(List.of(LocalDate.of(2024, 2, 29), LocalDate.of(2024, 3, 1)), DemoLoader.monthEnds(dates, 3));
-        assertEquals(List.of(), DemoLoader.monthEnds(dates, 6));
-    }
-
-    @Test
-    void demo_boots_from_a_clean_data_dir_with_models_and_monthly_fits_and_a_restart_adds_nothing(@TempDir Path tmp) throws IOException {
+    void demo_boots_from_a_clean_data_dir_with_models_monthly_fits_and_an_evaluation_and_a_restart_adds_nothing(@TempDir Path tmp)
+            throws IOException {
         Path demo = Files.createDirectories(tmp.resolve("demo-data"));
         Files.writeString(demo.resolve("models.json"), MODELS);
         // 2024-01-01 .. 2024-06-14: 120 weekdays, so month ends from Feb (40 days) and Apr (80 days) have full windows.
@@ -53,20 +49,35 @@ class DemoLoaderTest {
         try (OutputStream out = new GZIPOutputStream(Files.newOutputStream(demo.resolve("returns.csv.gz")))) {
             out.write(SyntheticReturns.csv(SyntheticReturns.rows(31, SyntheticReturns.tickers(12), dates)).getBytes(StandardCharsets.UTF_8));
         }
+        int fitsBefore;
         AppConfig config = AppConfig.defaults().withPort(0).withDbUrl("jdbc:h2:file:" + tmp.resolve("data/eigencov")).withDemo(true, demo);
         try (App app = App.create(config).start()) {
             RestAssured.port = app.port();
             http().get("/v1/models").then().statusCode(200).body("models.name", contains("mini-long", "mini-short"));
-            http().get("/v1/models/mini-short/fits").then().statusCode(200).body("fits.asOf",
+            http().get("/v1/models/mini-short/fits").then().statusCode(200).body("fits.findAll { it.origin == 'backfill' }.asOf",
                     contains("2024-06-14", "2024-05-31", "2024-04-30", "2024-03-29", "2024-02-29"));
-            http().get("/v1/models/mini-long/fits").then().statusCode(200).body("fits", hasSize(3));
+            http().get("/v1/models/mini-long/fits").then().statusCode(200).body("fits.findAll { it.origin == 'backfill' }", hasSize(3));
+            // two backfill jobs and the evaluation, all done; the evaluation scores both models and both baselines of each
+            http().get("/v1/jobs").then().statusCode(200).body("jobs.kind", contains("evaluation", "backfill", "backfill"))
+                    .body("jobs.state", everyItem(equalTo("done")));
+            http().get("/v1/evaluations").then().statusCode(200).body("evaluations", hasSize(1));
+            int id = http().get("/v1/evaluations").then().extract().path("evaluations[0].id");
+            // from the first date with an 80-day window (2024-04-19, a Friday) weekly to 2024-06-14, which has no 5 later dates
+            http().get("/v1/evaluations/" + id).then().statusCode(200).body("state", equalTo("done"))
+                    .body("request.models", contains("mini-short", "mini-long"))
+                    .body("dates[0]", equalTo("2024-04-19")).body("dates", hasSize(8))
+                    .body("dropped.date", contains("2024-06-14"))
+                    .body("results.model", contains("mini-short", "mini-short", "mini-short", "mini-long", "mini-long", "mini-long"))
+                    .body("results.baseline", contains(null, "sample", "ledoit-wolf", null, "sample", "ledoit-wolf"));
             ServedFit march = app.fitLookup().resolve("mini-short", LocalDate.of(2024, 4, 15), null);
             assertEquals(LocalDate.of(2024, 3, 29), march.ref().asOf());
             assertEquals(LocalDate.of(2024, 6, 14), app.fitLookup().resolve("mini-long", null, null).ref().asOf());
+            fitsBefore = http().get("/v1/models/mini-short/fits").then().extract().path("fits.size()");
         }
         try (App again = App.create(config).start()) {
             RestAssured.port = again.port();
-            http().get("/v1/models/mini-short/fits").then().statusCode(200).body("fits", hasSize(5));
+            http().get("/v1/models/mini-short/fits").then().statusCode(200).body("fits", hasSize(fitsBefore));
+            http().get("/v1/jobs").then().statusCode(200).body("jobs", hasSize(3));
             http().get("/v1/panels/mini").then().statusCode(200).body("rows", org.hamcrest.Matchers.equalTo(12 * 120));
         }
     }

@@ -6,6 +6,7 @@ import eigencov.http.HttpApi;
 import eigencov.math.FactorFitter;
 import eigencov.store.Database;
 import eigencov.store.FitRepository;
+import eigencov.store.JobRepository;
 import eigencov.store.ModelRepository;
 import eigencov.store.PanelStore;
 import eigencov.store.RefitLocks;
@@ -15,6 +16,7 @@ import java.nio.charset.StandardCharsets;
 import java.time.Clock;
 import java.time.LocalDate;
 import java.util.List;
+import java.util.concurrent.atomic.AtomicReference;
 
 /**
  * The services of one instance wired by hand over a test store, as App does. {@link #sameStore()}
@@ -32,6 +34,13 @@ final class ServiceFixture implements AutoCloseable {
     final ModelService models;
     final Clock clock;
     final RefitLocks refitLocks;
+    final JobRepository jobRepo;
+    final JobRunner runner;
+    final JobService jobs;
+    final BackfillService backfills;
+    final EvaluationService evaluations;
+    /** Told after every job step; tests set it to stop, cancel or hold a run at a chosen step. */
+    final AtomicReference<JobRunner.Observer> observer = new AtomicReference<>(JobRunner.Observer.NONE);
     private final String url;
 
     /** A fixture on a fresh store (in-memory H2, or a fresh PostgreSQL schema on the PostgreSQL test run). */
@@ -51,6 +60,13 @@ final class ServiceFixture implements AutoCloseable {
         fits = new FitService(modelRepo, fitRepo, windows, served, new FitCodec(mapper), new FactorFitter(null), mapper, clock);
         models = new ModelService(modelRepo, fitRepo, windows, served, mapper, clock);
         panels = new PanelService(windows, 10, (panel, before, after) -> { });
+        jobRepo = new JobRepository(db.dataSource());
+        // no executor: the test runs jobs itself, on its own thread
+        runner = new JobRunner(jobRepo, RefitLocks.forJobs(db), JobKinds.create(fits, fitRepo, modelRepo, windows, refitLocks, mapper, null),
+                null, clock, JobRunner.DEFAULT_POLL, (id, done, total) -> observer.get().stepped(id, done, total));
+        jobs = new JobService(jobRepo, runner, clock);
+        backfills = new BackfillService(modelRepo, windows, jobs, mapper);
+        evaluations = new EvaluationService(modelRepo, windows, jobs, mapper);
     }
 
     /** Another fixture on this fixture's store: a restarted process, or a second instance. */
