@@ -3,7 +3,7 @@ package eigencov.math;
 import java.util.Objects;
 
 /**
- * Options of one fit (design.md section 3).
+ * Options of one fit (docs/design.md section 3).
  *
  * @param rule          factor-count rule
  * @param halfLifeDays  half-life of exponential weights in window positions; null = equal weights
@@ -18,7 +18,7 @@ import java.util.Objects;
 public record FitOptions(FactorRule rule, Double halfLifeDays, double minCoverage, Basis basis, double specificFloor,
                          FactorHold hold, boolean rotate) {
 
-    /** Specific-variance floor as a share of S_ii: common practice (methods.md section 4), no canonical source. */
+    /** Specific-variance floor as a share of S_ii: common practice (docs/methods.md section 4), no canonical source. */
     public static final double DEFAULT_SPECIFIC_FLOOR = 0.05;
 
     public FitOptions {
