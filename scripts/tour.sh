@@ -44,13 +44,13 @@ step "Ready?" "$URL/ready"
 step "Return panels: counts of tickers, dates and rows, and the date range" "$URL/v1/panels"
 step "One panel" "$URL/v1/panels/$PANEL"
 step "Read returns back (two tickers, one week), as CSV" -H 'Accept: text/csv' \
-    "$URL/v1/panels/$PANEL/returns?tickers=BLDN,BNDX&from=2026-11-20&to=2026-11-27"
+    "$URL/v1/panels/$PANEL/returns?tickers=BLDN.VLM,BNDX.VLM&from=2026-11-20&to=2026-11-27"
 step "Upload returns (JSON; CSV with header date,ticker,value works too). Upserts on (date, ticker), all or nothing" \
     -X POST "${JSON[@]}" "$URL/v1/panels/tour-panel/returns" \
-    -d '{"returns":[{"date":"2026-11-26","ticker":"AAA","value":0.012},{"date":"2026-11-27","ticker":"AAA","value":-0.004}]}'
+    -d '{"returns":[{"date":"2026-11-26","ticker":"QRLX.VLM","value":0.012},{"date":"2026-11-27","ticker":"QRLX.VLM","value":-0.004}]}'
 step "A bad row is rejected with its row and field, and nothing is stored" \
     -X POST "${JSON[@]}" "$URL/v1/panels/tour-panel/returns" \
-    -d '{"returns":[{"date":"2026-11-27","ticker":"AAA","value":"lots"}]}'
+    -d '{"returns":[{"date":"2026-11-27","ticker":"QRLX.VLM","value":"lots"}]}'
 
 step "Models: each spec with its newest fit" "$URL/v1/models"
 step "One model" "$URL/v1/models/$MODEL"
@@ -67,29 +67,29 @@ step "Fit history, newest first (failed attempts are listed with their reason)" 
 FIT_ID=$(curl -sS "${AUTH[@]}" "$URL/v1/models/$MODEL/fits" | sed -n 's/^{"fits":\[{"id":\([0-9]*\).*/\1/p' || true)
 step "One fit: universe, spectrum, factor-count evidence, imputation, alignment, timings" "$URL/v1/models/$MODEL/fits/${FIT_ID:-1}"
 
-TICKERS='["BLDN","BMMN","BNDX","BNHS","BRND","BRNS","BRRX","BTHG","DEMI"]'
+TICKERS='["BLDN.VLM","BMMN.VLM","BNDX.VLM","BNHS.VLM","BRND.VLM","BRNS.VLM","BRRX.VLM","BTHG.VLM","DEMI.VLM"]'
 step "Covariance of a few names (annualised), from the newest fit" \
     -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/covariance" -d '{"tickers":'"$TICKERS"',"scale":"annual"}'
 step "The same as of a past date: the latest fit with asOf <= 2026-03-31" \
     -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/covariance?asOf=2026-03-31" -d '{"tickers":'"$TICKERS"',"correlation":true}'
-step "Covariance by GET, as CSV" -H 'Accept: text/csv' "$URL/v1/models/$MODEL/covariance?tickers=BLDN,BNDX,BRND&scale=annual"
+step "Covariance by GET, as CSV" -H 'Accept: text/csv' "$URL/v1/models/$MODEL/covariance?tickers=BLDN.VLM,BNDX.VLM,BRND.VLM&scale=annual"
 step "Factor form: exposures, factor covariance, specific variances" \
-    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/covariance" -d '{"tickers":["BLDN","BNDX","BRND"],"form":"factor"}'
+    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/covariance" -d '{"tickers":["BLDN.VLM","BNDX.VLM","BRND.VLM"],"form":"factor"}'
 step "Unknown tickers: 422 listing them, or missing=omit to leave them out" \
-    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/covariance?missing=omit" -d '{"tickers":["BLDN","NOPE"]}'
-step "Exposures and specific variance" -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/exposures" -d '{"tickers":["BLDN","BNDX"]}'
+    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/covariance?missing=omit" -d '{"tickers":["BLDN.VLM","NOPE.VLM"]}'
+step "Exposures and specific variance" -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/exposures" -d '{"tickers":["BLDN.VLM","BNDX.VLM"]}'
 step "Factors: factor covariance and variance shares" "$URL/v1/models/$MODEL/factors"
 step "Factor returns over a month, as CSV" -H 'Accept: text/csv' "$URL/v1/models/$MODEL/factor-returns?from=2026-11-01&to=2026-11-27"
 step "Risk of a portfolio: volatility, factor/specific split, by factor, by asset" \
     -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/risk" \
-    -d '{"weights":{"BLDN":0.3,"BNDX":0.3,"BRND":0.2,"DEMI":0.2},"scale":"annual"}'
+    -d '{"weights":{"BLDN.VLM":0.3,"BNDX.VLM":0.3,"BRND.VLM":0.2,"DEMI.VLM":0.2},"scale":"annual"}'
 step "Tracking error against a benchmark" \
     -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/risk" \
-    -d '{"weights":{"BLDN":0.4,"BNDX":0.3,"BRND":0.3},"benchmark":{"BLDN":0.25,"BNDX":0.25,"BRND":0.25,"DEMI":0.25},"scale":"annual"}'
-step "A recent listing (NELE, listed 2026-09-02) answers as a short-history name, listed in \"shortHistory\"" \
-    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/risk" -d '{"weights":{"BLDN":0.5,"NELE":0.5},"scale":"annual"}'
+    -d '{"weights":{"BLDN.VLM":0.4,"BNDX.VLM":0.3,"BRND.VLM":0.3},"benchmark":{"BLDN.VLM":0.25,"BNDX.VLM":0.25,"BRND.VLM":0.25,"DEMI.VLM":0.25},"scale":"annual"}'
+step "A recent listing (NELE.VLM, listed 2026-09-02) answers as a short-history name, listed in \"shortHistory\"" \
+    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/risk" -d '{"weights":{"BLDN.VLM":0.5,"NELE.VLM":0.5},"scale":"annual"}'
 step "Inverse of the covariance (precision matrix), by Woodbury on the factor form" \
-    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/precision" -d '{"tickers":["BLDN","BNDX","BRND"],"scale":"annual"}'
+    -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/precision" -d '{"tickers":["BLDN.VLM","BNDX.VLM","BRND.VLM"],"scale":"annual"}'
 step "Minimum-variance weights of a ticker list (fully invested, unconstrained) and their volatility" \
     -X POST "${JSON[@]}" "$URL/v1/models/$MODEL/minimum-variance" -d '{"tickers":'"$TICKERS"',"scale":"annual"}'
 

@@ -19,7 +19,7 @@ import java.util.List;
 import java.util.Map;
 
 /**
- * Model evaluations (design.md section 6, "Evaluation"): {@code POST /v1/evaluations} (202 with the job,
+ * Model evaluations (docs/design.md section 6, "Evaluation"): {@code POST /v1/evaluations} (202 with the job,
  * {@code Location: /v1/evaluations/{id}}), {@code GET /v1/evaluations}, {@code GET /v1/evaluations/{id}},
  * {@code GET /v1/evaluations/{id}/series} (JSON or CSV).
  */

@@ -6,7 +6,7 @@ import io.javalin.config.RoutesConfig;
 import java.util.Map;
 
 /**
- * Stored jobs (design.md section 6, "Jobs"): {@code GET /v1/jobs} (newest first), {@code GET /v1/jobs/{id}},
+ * Stored jobs (docs/design.md section 6, "Jobs"): {@code GET /v1/jobs} (newest first), {@code GET /v1/jobs/{id}},
  * {@code DELETE /v1/jobs/{id}} (cancel: 200 with the cancelled job; a finished job 409).
  */
 public final class JobRoutes implements RouteModule {

@@ -18,7 +18,7 @@ import java.util.Map;
 /**
  * Model specs and fits: {@code PUT/GET/DELETE /v1/models/{model}}, {@code GET /v1/models},
  * {@code POST/GET /v1/models/{model}/fits}, {@code GET /v1/models/{model}/fits/{id}}. A POST of fits
- * with {@code from}, {@code to} and {@code every} starts a range backfill job (202, design.md section 6).
+ * with {@code from}, {@code to} and {@code every} starts a range backfill job (202, docs/design.md section 6).
  */
 public final class ModelRoutes implements RouteModule {
     /**

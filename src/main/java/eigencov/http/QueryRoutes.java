@@ -30,7 +30,7 @@ import java.util.Set;
 import java.util.regex.Pattern;
 
 /**
- * The query endpoints (design.md section 4, "Queries"). Each handler parses and validates the
+ * The query endpoints (docs/design.md section 4, "Queries"). Each handler parses and validates the
  * request, calls one {@link QueryService} method and maps the answer with {@link QueryResponses}.
  *
  * <p>Every endpoint takes the query parameters {@code asOf=YYYY-MM-DD} or {@code fit=ID} (not both;

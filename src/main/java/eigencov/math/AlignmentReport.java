@@ -4,7 +4,7 @@ import java.util.List;
 import java.util.Objects;
 
 /**
- * How factor signs were fixed (design.md section 3, methods.md section 8).
+ * How factor signs were fixed (docs/design.md section 3, docs/methods.md section 8).
  *
  * @param mode           {@link #FIRST_FIT} (signs by positive column sum) or {@link #PREVIOUS_FIT}
  * @param commonTickers  tickers shared with the previous model (0 on a first fit)

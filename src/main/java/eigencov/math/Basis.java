@@ -1,6 +1,6 @@
 package eigencov.math;
 
-/** Which matrix the principal components are taken of (design.md section 3). */
+/** Which matrix the principal components are taken of (docs/design.md section 3). */
 public enum Basis {
     /** PCA of the weighted covariance S. */
     COVARIANCE,

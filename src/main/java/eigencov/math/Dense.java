@@ -1,7 +1,7 @@
 package eigencov.math;
 
 /**
- * Dense kernels on flat row-major {@code double[]} (style.md practice 8). Shapes are checked by
+ * Dense kernels on flat row-major {@code double[]} (docs/code-style.md practice 8). Shapes are checked by
  * the callers in this package; the loops do not re-check them.
  */
 final class Dense {

@@ -4,9 +4,9 @@ import java.util.LinkedHashMap;
 import java.util.Map;
 
 /**
- * Factor-count rules (methods.md section 2). Each works on the non-zero eigenvalues of the
+ * Factor-count rules (docs/methods.md section 2). Each works on the non-zero eigenvalues of the
  * decomposed matrix (descending) and returns k with its evidence; k is clipped to [1, rank].
- * Where a rule needs the number of dates it uses the effective number T_eff (methods.md
+ * Where a rule needs the number of dates it uses the effective number T_eff (docs/methods.md
  * section 6), so half-life weights are accounted for.
  */
 public final class FactorCount {
@@ -137,7 +137,8 @@ public final class FactorCount {
     /**
      * Tracy-Widom (beta = 1) 99 % quantile, used as the margin above the edge: 2.02 (from memory,
      * Johnstone 2001, Table 1). Without a margin the largest pure-noise eigenvalue crosses the bare
-     * edge in about one panel in six (marchenko_pastur/SOURCE.md), which would add a spurious factor.
+     * edge in about one panel in six (src/test/resources/reference/marchenko_pastur/SOURCE.md), which
+     * would add a spurious factor.
      */
     public static final double TRACY_WIDOM_99 = 2.02;
 
@@ -159,7 +160,7 @@ public final class FactorCount {
      * sigma2 max((1 + sqrt(K/T_eff))^2, Johnstone's 99 % Tracy-Widom threshold), where sigma2 is the mean
      * of the residual spectrum (trace minus the counted eigenvalues, over K - k), iterated until the
      * count is stable (with k = 0 this is trace/K; for a correlation matrix after removing the first
-     * factor it is 1 - lambda_1/K, methods.md section 2).
+     * factor it is 1 - lambda_1/K, docs/methods.md section 2).
      */
     private static FactorCountReport randomMatrix(FactorRule.RandomMatrix rule, double[] ev, int assets,
                                                   double tEff, double trace) {

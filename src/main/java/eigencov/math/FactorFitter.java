@@ -7,7 +7,7 @@ import java.util.Objects;
 import java.util.concurrent.ExecutorService;
 
 /**
- * Fits a statistical factor model to one window (design.md section 3): coverage filter,
+ * Fits a statistical factor model to one window (docs/design.md section 3): coverage filter,
  * weights, EM-PCA imputation of gaps, exact principal components (Gram route when K > T),
  * factor-count rule, specific variances with floor, factor returns, sign alignment; then, when
  * the options ask for them, short-history names ({@link ShortHistoryFit}, a separate step on the
@@ -16,11 +16,11 @@ import java.util.concurrent.ExecutorService;
 public final class FactorFitter {
 
     /**
-     * EM stopping tolerance (methods.md section 7: 1e-6 relative, practice), on the relative change of the imputed
+     * EM stopping tolerance (docs/methods.md section 7: 1e-6 relative, practice), on the relative change of the imputed
      * cells or of the observed-cell objective, whichever gets there first.
      */
     public static final double DEFAULT_EM_TOLERANCE = 1e-6;
-    /** EM iteration cap (methods.md section 7: 100-500, practice). */
+    /** EM iteration cap (docs/methods.md section 7: 100-500, practice). */
     public static final int DEFAULT_EM_MAX_ITERATIONS = 200;
     /**
      * Dimensions EM tracks beyond the k it imputes with, so that the top-k subspace converges even when
@@ -270,7 +270,7 @@ public final class FactorFitter {
 
     /**
      * Window weights summing to 1: equal, or w_t proportional to 2^(-(T-1-t)/h) for half-life h in
-     * window positions (design.md section 3).
+     * window positions (docs/design.md section 3).
      */
     public static double[] weights(int dates, Double halfLifeDays) {
         double[] w = new double[dates];
@@ -285,7 +285,7 @@ public final class FactorFitter {
         return w;
     }
 
-    /** T_eff = (sum w)^2 / sum w^2 (methods.md section 6). */
+    /** T_eff = (sum w)^2 / sum w^2 (docs/methods.md section 6). */
     public static double effectiveObservations(double[] w) {
         double s = 0;
         double s2 = 0;
@@ -343,7 +343,7 @@ public final class FactorFitter {
     }
 
     /**
-     * EM-PCA imputation (methods.md section 7) in place on x (K x T, gaps pre-filled with the weighted
+     * EM-PCA imputation (docs/methods.md section 7) in place on x (K x T, gaps pre-filled with the weighted
      * observed mean). The number of factors k comes from the fit's own rule on the mean-filled window.
      * Each iteration: standardise with the current weighted means and deviations; take the top k Ritz
      * vectors of M M' in a tracked subspace of k + {@value #EM_OVERSAMPLE} dimensions (Rayleigh-Ritz);
@@ -360,7 +360,7 @@ public final class FactorFitter {
      * <p>Why the objective: where a name has many gaps in the heavily weighted recent dates and k has
      * surplus factors, EM keeps moving its gap values along a weakly identified direction for hundreds of
      * iterations (even with an exact decomposition per step) while the fit to the observed cells has
-     * settled; methods.md section 7 stops on the objective. On the demo this ends the 2-year model's EM
+     * settled; docs/methods.md section 7 stops on the objective. On the demo this ends the 2-year model's EM
      * after 8 to 71 iterations with the model covariance within 2e-4 (relative Frobenius) of a run to
      * 1e-8 on the imputed cells.
      */

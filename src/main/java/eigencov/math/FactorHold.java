@@ -4,7 +4,7 @@ import java.util.LinkedHashMap;
 import java.util.Map;
 
 /**
- * Hysteresis on the number of factors across refits (methods.md section 2, practice): keep the
+ * Hysteresis on the number of factors across refits (docs/methods.md section 2, practice): keep the
  * previous fit's k until the rule has disagreed with it in {@code fits} consecutive fits, so that
  * a criterion hovering between two values does not add and drop a factor at every refit.
  *

@@ -7,7 +7,7 @@ import java.util.List;
 import java.util.Map;
 
 /**
- * The served factor model {@code C = B F B' + D} (design.md section 3).
+ * The served factor model {@code C = B F B' + D} (docs/design.md section 3).
  *
  * @param tickers           K tickers in universe order
  * @param factors           k, at least 1

@@ -1,7 +1,7 @@
 package eigencov.math;
 
 /**
- * How many factors a fit keeps (design.md, PUT /v1/models {@code factors}). Every rule's
+ * How many factors a fit keeps (docs/design.md section 4, PUT /v1/models {@code factors}). Every rule's
  * choice is clipped to [1, rank] by {@link FactorCount}.
  */
 public sealed interface FactorRule {

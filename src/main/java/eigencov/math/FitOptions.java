@@ -3,7 +3,7 @@ package eigencov.math;
 import java.util.Objects;
 
 /**
- * Options of one fit (design.md section 3).
+ * Options of one fit (docs/design.md section 3).
  *
  * @param rule          factor-count rule
  * @param halfLifeDays  half-life of exponential weights in window positions; null = equal weights
@@ -21,7 +21,7 @@ import java.util.Objects;
 public record FitOptions(FactorRule rule, Double halfLifeDays, double minCoverage, Basis basis, double specificFloor,
                          FactorHold hold, boolean rotate, Integer shortHistoryMinObservations) {
 
-    /** Specific-variance floor as a share of S_ii: common practice (methods.md section 4), no canonical source. */
+    /** Specific-variance floor as a share of S_ii: common practice (docs/methods.md section 4), no canonical source. */
     public static final double DEFAULT_SPECIFIC_FLOOR = 0.05;
     /** k + 2 for the smallest k: an intercept, k exposures and one degree of freedom left for the residual. */
     public static final int MIN_SHORT_HISTORY_OBSERVATIONS = 3;

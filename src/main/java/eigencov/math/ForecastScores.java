@@ -28,7 +28,7 @@ import java.util.List;
  * of that date. Not thread-safe: one instance per forecaster, fed in date order.
  */
 public final class ForecastScores {
-    /** Trading days a year, for annualising (common practice, design.md section 3). */
+    /** Trading days a year, for annualising (common practice, docs/design.md section 3). */
     public static final double DAYS_A_YEAR = 252;
     private static final double LN_2PI = Math.log(2 * Math.PI);
 

@@ -1,7 +1,7 @@
 package eigencov.math;
 
 /**
- * What EM-PCA imputation did (methods.md section 7).
+ * What EM-PCA imputation did (docs/methods.md section 7).
  *
  * @param cells           imputed cells (missing observations of admitted tickers)
  * @param iterations      EM iterations run (0 when nothing was missing)

@@ -5,7 +5,7 @@ import java.util.Random;
 /**
  * Principal components of S = M M' for a ticker-major data matrix M (K x T, row i = the
  * weighted, demeaned and possibly standardised series of ticker i), without forming K x K when
- * K > T (methods.md section 1).
+ * K > T (docs/methods.md section 1).
  * <ul>
  * <li>K <= T: S (K x K) = X'X with X = M' (T x K), then the symmetric eigensolver.</li>
  * <li>K > T: the Gram matrix G = M'M (T x T) has the same non-zero eigenvalues; if G u = lambda u
@@ -37,14 +37,14 @@ public final class PcaSolver {
         while (r < w.length && w[r] > tol) {
             r++;
         }
-        // demeaned data: rank <= min(K, T - 1) (methods.md section 1)
+        // demeaned data: rank <= min(K, T - 1) (docs/methods.md section 1)
         this.rank = Math.min(r, Math.min(assets, dates - 1));
         this.values = java.util.Arrays.copyOf(w, this.rank);
     }
 
     /**
      * Eigenvalues at or below {@code max(K, T) * eps * lambda_1} are numerically zero: the error of a
-     * backward-stable symmetric eigensolver is a small multiple of eps ||S|| (methods.md section 11
+     * backward-stable symmetric eigensolver is a small multiple of eps ||S|| (docs/methods.md section 11
      * uses eps K lambda_1).
      */
     public static double rankTolerance(int assets, int dates, double largest) {

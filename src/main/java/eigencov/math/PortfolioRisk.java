@@ -1,7 +1,7 @@
 package eigencov.math;
 
 /**
- * Risk of a portfolio under a factor model (design.md section 3, methods.md section 9). All
+ * Risk of a portfolio under a factor model (docs/design.md section 3, docs/methods.md section 9). All
  * variances and volatilities include the scale (1 = daily; 252 = annual, common practice).
  *
  * @param variance                w'Cw

@@ -7,7 +7,7 @@ import org.apache.commons.math3.linear.SingularValueDecomposition;
 import java.util.List;
 
 /**
- * Orthogonal Procrustes alignment of a new fit's factors to the previous fit's (methods.md section
+ * Orthogonal Procrustes alignment of a new fit's factors to the previous fit's (docs/methods.md section
  * 8; Schönemann 1966): R = argmin over orthogonal R of ||B_new[c] R - B_old[c]||_F on the common
  * tickers c, from the SVD B_new[c]' B_old[c] = P S Q', R = P Q'. Applied to all names as B R, to the
  * factor covariance as R' F R (no longer diagonal) and to factor returns as f_t' R. R is orthogonal,
@@ -18,7 +18,7 @@ import java.util.List;
  * not the same ones turned, and the fit is reported as a factor break instead).
  */
 final class ProcrustesAlignment {
-    /** Least subspace overlap for a rotation (methods.md section 8 suggests 0.5; practice). */
+    /** Least subspace overlap for a rotation (docs/methods.md section 8 suggests 0.5; practice). */
     static final double MIN_OVERLAP = 0.5;
 
     private ProcrustesAlignment() {

@@ -4,7 +4,7 @@ import java.util.HashMap;
 import java.util.Map;
 
 /**
- * Risk numbers read from the factor form only (style.md practice 9): a covariance submatrix costs
+ * Risk numbers read from the factor form only (docs/code-style.md practice 9): a covariance submatrix costs
  * O(|S|^2 k), a portfolio O(|S| k + k^2); the K x K matrix is never built.
  */
 public final class RiskCalculator {

@@ -1,8 +1,8 @@
 package eigencov.math;
 
 /**
- * What the optional rotation step did (design.md section 3: "optionally orthogonal Procrustes
- * across swapped factors, reported"; methods.md section 8).
+ * What the optional rotation step did (docs/design.md section 3, "Signs": an orthogonal Procrustes
+ * rotation onto the previous fit's factors, reported; docs/methods.md section 8).
  *
  * @param applied whether the factors were rotated
  * @param reason  why not, or "aligned to the previous fit"

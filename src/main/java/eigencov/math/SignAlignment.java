@@ -4,7 +4,7 @@ import java.util.ArrayList;
 import java.util.List;
 
 /**
- * Orients factors (design.md section 3, methods.md section 8). First fit: each eigenvector gets
+ * Orients factors (docs/design.md section 3, docs/methods.md section 8). First fit: each eigenvector gets
  * a positive sum (tie: its largest-|.| entry positive). Later fits: each new factor is matched to
  * the previous factor with the largest |cosine| over the common tickers (greedy assignment,
  * largest first) and takes the sign of that inner product. Only signs change; factor order stays

@@ -4,7 +4,7 @@ import java.util.concurrent.ExecutorService;
 
 /**
  * The covariance of a return window, kept in its T x n factor {@code Y} (row t = {@code sqrt(w_t)
- * (x_t - mu)}), so that {@code S = Y'Y = sum_t w_t (x_t - mu)(x_t - mu)'} (design.md section 3) is
+ * (x_t - mu)}), so that {@code S = Y'Y = sum_t w_t (x_t - mu)(x_t - mu)'} (docs/design.md section 3) is
  * never formed when n &gt; T. The two baselines of a model evaluation (docs/design.md section 6,
  * docs/methods.md sections 5 and 10) come from it: {@link #sample()} and {@link #ledoitWolf()}.
  *

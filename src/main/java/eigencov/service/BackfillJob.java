@@ -15,7 +15,7 @@ import java.util.Map;
 import java.util.Optional;
 
 /**
- * Range backfills as jobs (design.md section 6): one fit of the model per planned trading date,
+ * Range backfills as jobs (docs/design.md section 6): one fit of the model per planned trading date,
  * oldest first. A date that already has an ok fit of the job's spec version is skipped and listed;
  * a date whose fit fails is recorded (failed attempt with its reason) and the job goes on. The panel
  * is read once per run and each window cut from it, as {@link FitService#backfill} does.

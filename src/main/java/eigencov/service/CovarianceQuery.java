@@ -14,7 +14,7 @@ import java.util.List;
 public record CovarianceQuery(List<String> tickers, CovarianceForm form, Scale scale, boolean correlation,
                               MissingTickers missing) {
     /**
-     * Largest matrix-form request: 3,000 names (the top of the optimiser range in design.md
+     * Largest matrix-form request: 3,000 names (the top of the optimiser range in docs/design.md
      * section 1) is a 72 MB matrix; beyond that the factor form is the sensible payload.
      */
     public static final int MAX_MATRIX_TICKERS = 3_000;

@@ -28,7 +28,7 @@ import java.util.Optional;
 import java.util.concurrent.ExecutorService;
 
 /**
- * Runs an evaluation (design.md section 6, "Evaluation"; the statistics are {@link ForecastScores},
+ * Runs an evaluation (docs/design.md section 6, "Evaluation"; the statistics are {@link ForecastScores},
  * docs/methods.md sections 5, 10 and 11). Two passes over the planned forecast dates t:
  * <ol>
  * <li>Forecasts: each model's fit as of t, the stored one of the job's spec version if there is one,

@@ -6,7 +6,7 @@ import java.time.LocalDate;
 import java.util.List;
 
 /**
- * {@code POST /v1/evaluations} (design.md section 6): 1-8 stored models on one panel, the forecast
+ * {@code POST /v1/evaluations} (docs/design.md section 6): 1-8 stored models on one panel, the forecast
  * dates ({@code from}, {@code to}, {@code every}), the horizon, optional random portfolios and baselines.
  * Boxed fields, so that a missing one is reported by name rather than defaulted silently.
  */

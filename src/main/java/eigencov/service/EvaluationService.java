@@ -19,7 +19,7 @@ import java.util.Map;
 import java.util.Set;
 
 /**
- * Model evaluations (design.md section 6, "Evaluation"): validates and plans a request and stores it
+ * Model evaluations (docs/design.md section 6, "Evaluation"): validates and plans a request and stores it
  * as a queued {@link EvaluationJob} (an evaluation's id is its job's id); reads evaluations and their
  * per-date series. A rejected request stores nothing.
  */

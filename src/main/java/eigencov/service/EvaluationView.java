@@ -8,7 +8,7 @@ import java.time.Instant;
 import java.util.Map;
 
 /**
- * An evaluation as the API shows it (design.md section 6): its job's state and progress, the request,
+ * An evaluation as the API shows it (docs/design.md section 6): its job's state and progress, the request,
  * the forecast dates used and those dropped (with reasons), and one result per model and per (model,
  * baseline). Lists leave out dates, dropped and results. Until it is done, {@code dates} and
  * {@code dropped} are the plan and {@code results} is empty.

@@ -5,7 +5,7 @@ import eigencov.store.JobRow;
 import java.util.Map;
 
 /**
- * A kind of stored job (design.md section 6, "Jobs"): {@code backfill}, {@code evaluation}. The kind
+ * A kind of stored job (docs/design.md section 6, "Jobs"): {@code backfill}, {@code evaluation}. The kind
  * validates and plans its requests when they arrive (nothing is stored for a rejected one), and
  * {@link #run} does or resumes the work on the instance that holds the job's claim.
  *

@@ -17,7 +17,7 @@ import java.util.concurrent.ScheduledExecutorService;
 import java.util.concurrent.TimeUnit;
 
 /**
- * Runs stored jobs in the background (design.md section 6, "Jobs"). Every {@code poll} (and at once
+ * Runs stored jobs in the background (docs/design.md section 6, "Jobs"). Every {@code poll} (and at once
  * when a job is submitted here) it looks for queued and running jobs, oldest first, and runs each whose
  * claim it wins: {@link RefitLocks#forJobs}, a PostgreSQL session lock held for the whole run that dies
  * with its holder (on H2, one process per store, an in-process lock). So of several instances sharing

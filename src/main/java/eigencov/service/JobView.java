@@ -10,7 +10,7 @@ import java.time.Instant;
 import java.util.Map;
 
 /**
- * A job as the API shows it (design.md section 6): {@code id, kind, state, progress, createdAt,
+ * A job as the API shows it (docs/design.md section 6): {@code id, kind, state, progress, createdAt,
  * startedAt?, finishedAt?, error?, links}, the request it runs, and the fields of its kind (a range
  * backfill: {@code model, fits, skipped, failed}).
  */

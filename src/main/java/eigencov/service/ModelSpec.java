@@ -16,7 +16,7 @@ import java.util.Locale;
 import java.util.regex.Pattern;
 
 /**
- * A model spec as the API takes and echoes it (design.md section 4, {@code PUT /v1/models/{model}}).
+ * A model spec as the API takes and echoes it (docs/design.md section 4, {@code PUT /v1/models/{model}}).
  * Boxed fields so that a missing value is reported by {@link #problems()} with its field name
  * rather than defaulted silently. {@link #withDefaults()} fills the optional ones.
  *
@@ -66,7 +66,7 @@ public record ModelSpec(String panel, Integer windowDays, Factors factors, Doubl
     /**
      * {@code {"rule": ..., "count"|"share"|"max": ..., "hold"?: n}}; which parameter applies depends on
      * the rule. {@code hold} (data-driven rules only, default 1 = none): k changes only after the rule has
-     * disagreed with the current k in n consecutive fits (methods.md section 2, practice).
+     * disagreed with the current k in n consecutive fits (docs/methods.md section 2, practice).
      */
     @JsonInclude(JsonInclude.Include.NON_NULL)
     public record Factors(String rule, Integer count, Double share, Integer max, Integer hold) {

@@ -20,7 +20,7 @@ import java.util.List;
  * through {@link #ingest}.
  */
 public final class PanelService {
-    /** Panel (and model) names: {@code [A-Za-z0-9._-]{1,64}} (design.md section 3). */
+    /** Panel (and model) names: {@code [A-Za-z0-9._-]{1,64}} (docs/design.md section 3). */
     public static final int MAX_NAME_LENGTH = 64;
     /** Most tickers one read-back may filter on. */
     static final int MAX_FILTER_TICKERS = 5_000;

@@ -5,7 +5,7 @@ import java.util.List;
 /**
  * The horizon variances are stated over: daily (the fit's own unit), annual (252 trading days,
  * common practice) or a horizon of {@code days} days. Variances are multiplied by {@code days},
- * volatilities by its square root (design.md section 3, "Scale").
+ * volatilities by its square root (docs/design.md section 3, "Scale").
  *
  * @param name "daily", "annual" or "horizon"
  * @param days variance multiplier, at least 1

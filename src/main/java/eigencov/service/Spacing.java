@@ -8,7 +8,7 @@ import java.util.List;
 import java.util.Locale;
 
 /**
- * How far apart the dates of a range backfill or an evaluation are (design.md section 6): every
+ * How far apart the dates of a range backfill or an evaluation are (docs/design.md section 6): every
  * trading date ({@code day}), or the last trading date within the range of each ISO week
  * ({@code week}) or calendar month ({@code month}).
  */

@@ -6,7 +6,7 @@ import java.util.List;
 import java.util.Map;
 import java.util.regex.Pattern;
 
-/** Validation of requested ticker lists (design.md section 3: tickers match {@code [A-Za-z0-9._:/-]{1,32}}). */
+/** Validation of requested ticker lists (docs/design.md section 3: tickers match {@code [A-Za-z0-9._:/-]{1,32}}). */
 final class Tickers {
     static final Pattern SYNTAX = Pattern.compile("[A-Za-z0-9._:/-]{1,32}");
 

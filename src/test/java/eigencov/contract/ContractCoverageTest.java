@@ -16,11 +16,11 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 /**
  * openapi/eigencov.yaml is a valid OpenAPI 3.1 document that documents every endpoint of the API
- * contract (design.md section 4), each with a 2xx and the problem+json errors it can answer.
+ * contract (docs/design.md section 4), each with a 2xx and the problem+json errors it can answer.
  * Every check is also shown to fail on a spoiled copy of the document.
  */
 class ContractCoverageTest {
-    /** design.md section 4, "HTTP API v1 (contract)": every endpoint it names. */
+    /** docs/design.md section 4, "HTTP API v1": every endpoint it names. */
     private static final Set<String> CONTRACT = Set.of(
             "GET /health", "GET /ready", "GET /metrics", "GET /openapi.yaml",
             "POST /v1/panels/{panel}/returns", "GET /v1/panels/{panel}/returns", "GET /v1/panels", "GET /v1/panels/{panel}",
@@ -29,15 +29,15 @@ class ContractCoverageTest {
             "POST /v1/models/{model}/covariance", "GET /v1/models/{model}/covariance",
             "POST /v1/models/{model}/exposures", "GET /v1/models/{model}/factors",
             "GET /v1/models/{model}/factor-returns", "POST /v1/models/{model}/risk",
-            // design.md section 6, serving additions
+            // docs/design.md section 6, serving additions
             "POST /v1/models/{model}/precision", "POST /v1/models/{model}/minimum-variance");
 
-    /** design.md section 6, "Jobs" and "Evaluation": every endpoint they name. */
+    /** docs/design.md section 6, "Jobs" and "Evaluation": every endpoint they name. */
     private static final Set<String> LONG_WORK = Set.of(
             "GET /v1/jobs", "GET /v1/jobs/{id}", "DELETE /v1/jobs/{id}",
             "POST /v1/evaluations", "GET /v1/evaluations", "GET /v1/evaluations/{id}", "GET /v1/evaluations/{id}/series");
 
-    /** Documented beyond design.md: GET form of exposures (as covariance has one). */
+    /** Documented beyond docs/design.md: GET form of exposures (as covariance has one). */
     private static final Set<String> EXTRA = Set.of("GET /v1/models/{model}/exposures");
 
     private static final SpecCheck CHECK = new SpecCheck();

@@ -43,7 +43,7 @@ import static org.junit.jupiter.api.Assertions.assertNotNull;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 /**
- * The evaluation endpoints (design.md section 6), and the evaluation's statistics recomputed here by
+ * The evaluation endpoints (docs/design.md section 6), and the evaluation's statistics recomputed here by
  * an independent path: each forecast from the service's own {@code asOf} answers (risk and covariance
  * queries), each realised return from the returns read back, the baselines' matrices from their
  * definitions on those returns, and the inverses, log-determinants and Gaussian densities from
@@ -291,7 +291,7 @@ class EvaluationEndpointsTest {
     }
 
     /**
-     * The window's sample covariance (design.md section 3: weights summing to 1, weighted means, divisor 1) or its
+     * The window's sample covariance (docs/design.md section 3: weights summing to 1, weighted means, divisor 1) or its
      * Ledoit-Wolf shrinkage from the published definition (docs/methods.md section 5; each date's term weighted by
      * w_t^2), with a gap taken as the name's mean, as the evaluation documents it.
      */

@@ -35,7 +35,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 /**
  * A real fit served end to end: the engine fits a seeded two-factor panel, and the covariance the
  * endpoint answers is checked against the sample covariance computed here from the raw returns
- * (design.md section 3: the model diagonal equals S_ii wherever the specific floor is inactive).
+ * (docs/design.md section 3: the model diagonal equals S_ii wherever the specific floor is inactive).
  */
 class FittedModelQueryTest {
     /** After an eigen-decomposition: about 1e-8 relative to the largest variance (style practice 12). */
@@ -82,7 +82,7 @@ class FittedModelQueryTest {
         app.close();
     }
 
-    /** Sample variance of column i with divisor T (design.md section 3, equal weights). */
+    /** Sample variance of column i with divisor T (docs/design.md section 3, equal weights). */
     private static double sampleVariance(int i) {
         int cols = panel.tickers().size();
         double mean = 0;

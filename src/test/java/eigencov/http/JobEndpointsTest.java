@@ -26,7 +26,7 @@ import static org.hamcrest.Matchers.startsWith;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-/** Range backfills over HTTP and the job endpoints (design.md section 6, "Jobs"). */
+/** Range backfills over HTTP and the job endpoints (docs/design.md section 6, "Jobs"). */
 class JobEndpointsTest {
     private static final String SPEC = "{\"panel\": \"jp\", \"windowDays\": 40, \"factors\": {\"rule\": \"fixed\", \"count\": 2}, "
             + "\"minCoverage\": 0.9, \"basis\": \"covariance\"}";

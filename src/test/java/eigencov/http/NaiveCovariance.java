@@ -5,7 +5,7 @@ import eigencov.math.FactorModel;
 import java.util.List;
 
 /**
- * Test oracle: the covariance C = B F B' + D of named tickers by the definition (design.md
+ * Test oracle: the covariance C = B F B' + D of named tickers by the definition (docs/design.md
  * section 3), element by element with plain loops, independent of the serving code.
  */
 final class NaiveCovariance {

@@ -45,7 +45,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 class PrecisionEndpointTest {
     /** C C^-1 = I and agreement with an LU inverse: the bound, relative to the largest entry. */
     private static final double INVERSE = 1e-9;
-    /** methods.md section 9 prints its check values with 6 decimals. */
+    /** docs/methods.md section 9 prints its check values with 6 decimals. */
     private static final double SIX_DECIMALS = 5e-7;
     /** Sums and first-order conditions of the same numbers: rounding. */
     private static final double ALGEBRAIC = 1e-10;
@@ -143,7 +143,7 @@ class PrecisionEndpointTest {
 
     @Test
     void minimum_variance_of_toy_model_M_matches_the_check_values_of_methods_section_9() {
-        // Source: /work/shared/methods.md section 9, "Check (Toy model M)": w_mv = (0.428215, 0.539820, 0.031966),
+        // Source: docs/methods.md section 9, "Check (Toy model M)": w_mv = (0.428215, 0.539820, 0.031966),
         // sigma_mv = 0.211609.
         JsonNode r = json(post("toy", "minimum-variance", Map.of("tickers", List.of("AAA", "BBB", "CCC")), "application/json"));
         JsonNode w = r.get("weights");
@@ -159,7 +159,7 @@ class PrecisionEndpointTest {
     void two_assets_get_the_textbook_closed_form() {
         // Two-asset minimum variance (e.g. Bodie, Kane and Marcus, Investments, the minimum-variance portfolio; from
         // memory): w_1 = (s2^2 - s12) / (s1^2 + s2^2 - 2 s12), variance (s1^2 s2^2 - s12^2) / (s1^2 + s2^2 - 2 s12).
-        // Toy model M (methods.md section 0): s1^2 = .0625, s2^2 = .0565, s12 = .0305.
+        // Toy model M (docs/methods.md section 0): s1^2 = .0625, s2^2 = .0565, s12 = .0305.
         double s11 = .0625;
         double s22 = .0565;
         double s12 = .0305;

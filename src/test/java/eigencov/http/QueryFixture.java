@@ -21,7 +21,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 /**
  * The fits the query tests serve, and the real App wired to them on a free port.
  * <ul>
- * <li>model "toy": fit 1 (2025-01-31), Toy model M of methods.md (tickers AAA, BBB, CCC);</li>
+ * <li>model "toy": fit 1 (2025-01-31), Toy model M of docs/methods.md (tickers AAA, BBB, CCC);</li>
  * <li>model "synth": fit 10 (2025-02-28) and fit 11 (2025-03-31), 40 tickers T0000..T0039, k = 3,
  * non-diagonal F, different seeds; ticker GONE excluded from both for coverage.</li>
  * </ul>

@@ -23,7 +23,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
 
 class RiskEndpointTest {
-    /** methods.md section 9 states its check values to 6 decimals. */
+    /** docs/methods.md section 9 states its check values to 6 decimals. */
     private static final double SIX_DECIMALS = 5e-7;
     /** Sums and square roots of the same quantities: agreement to rounding. */
     private static final double ALGEBRAIC = 1e-12;
@@ -56,7 +56,7 @@ class RiskEndpointTest {
 
     @Test
     void toy_model_M_risk_matches_the_check_values_of_methods_section_9() {
-        // Source: /work/shared/methods.md section 9, "Check (Toy model M)": w = (0.5, 0.3, 0.2), benchmark equal weight.
+        // Source: docs/methods.md section 9, "Check (Toy model M)": w = (0.5, 0.3, 0.2), benchmark equal weight.
         JsonNode r = risk("toy", Map.of("weights", weights("AAA", 0.5, "BBB", 0.3, "CCC", 0.2),
                 "benchmark", weights("AAA", 1 / 3.0, "BBB", 1 / 3.0, "CCC", 1 / 3.0)));
         assertFit(r.get("fit"), TOY_FIT);

@@ -10,7 +10,7 @@ import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.CsvSource;
 
-/** Optimised kernels against naive triple loops on seeded random data (style.md practice 12c). */
+/** Optimised kernels against naive triple loops on seeded random data (docs/code-style.md practice 12c). */
 class DenseTest {
 
     /** Sums of up to a few hundred products in a different order: relative 1e-12 of the scale. */

@@ -167,7 +167,7 @@ class EjmlOracleTest {
         int f = m.factors();
         int t = w.length;
         double l1 = r.eigenvalues()[0];
-        // factor returns: weighted covariance diag(lambda) (design.md section 3)
+        // factor returns: weighted covariance diag(lambda) (docs/design.md section 3)
         double[] fr = r.factorReturns();
         for (int a = 0; a < f; a++) {
             double mean = 0;

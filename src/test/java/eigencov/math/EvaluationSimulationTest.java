@@ -15,7 +15,7 @@ import org.junit.jupiter.api.Test;
  * forecast is inside its bias band, a forecast of a quarter of the variance shows b near 2, the true
  * covariance gives the lowest out-of-sample minimum-variance volatility (Engle and Colacito, 2006), and
  * the sample covariance has the published noise signature (q = K/T: in-sample minimum variance about
- * (1 - q) x true, out of sample about true / (1 - q); Pafka and Kondor, 2003, as methods.md states).
+ * (1 - q) x true, out of sample about true / (1 - q); Pafka and Kondor, 2003, as docs/methods.md states).
  */
 class EvaluationSimulationTest {
 

@@ -9,7 +9,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertSame;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 
-/** The hold on k (methods.md section 2, practice: change k only if the rule disagrees for n consecutive refits). */
+/** The hold on k (docs/methods.md section 2, practice: change k only if the rule disagrees for n consecutive refits). */
 class FactorHoldTest {
     private static final FactorRule RULE = new FactorRule.BaiNg(10);
 

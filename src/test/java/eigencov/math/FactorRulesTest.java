@@ -14,7 +14,7 @@ import org.junit.jupiter.params.provider.MethodSource;
 /** Factor-count rules on planted structure and on pure noise (Marchenko-Pastur law). */
 class FactorRulesTest {
 
-    /** methods.md section 2 property: X = F L' + E, N=200, T=150, r=3, all entries N(0,1). */
+    /** docs/methods.md section 2 property: X = F L' + E, N=200, T=150, r=3, all entries N(0,1). */
     static final int T = 150;
     static final int N = 200;
     static final int R = 3;
@@ -81,7 +81,8 @@ class FactorRulesTest {
 
     @Test
     void pure_noise_spectrum_follows_marchenko_pastur() {
-        // marchenko_pastur/SOURCE.md: T=1000, K=250 (q=0.25, sigma2=1): bounds [0.25, 2.25]; over 300 panels the
+        // src/test/resources/reference/marchenko_pastur/SOURCE.md:
+        // T=1000, K=250 (q=0.25, sigma2=1): bounds [0.25, 2.25]; over 300 panels the
         // largest eigenvalue ranged 2.1639..2.3136 and the smallest 0.2322..0.2722 (demeaned, divisor T-1);
         // a single panel's eigenvalue CDF was 0.0094 from the MP CDF in Kolmogorov distance
         JsonNode ref = Fixtures.json("marchenko_pastur", "mp_reference.json").get("empirical_replicates_T1000_K250");

@@ -148,10 +148,10 @@ class FirstFactorBetaTest {
 
     @Test
     void betas_of_every_row_come_from_the_factor_form_as_C_p_over_p_C_p() {
-        // against the dense C = B F B' + D (methods.md section 0 toy model M; p chosen here)
+        // against the dense C = B F B' + D (docs/methods.md section 0 toy model M; p chosen here)
         FactorModel m = new FactorModel(java.util.List.of("AQ", "BQ", "CQ"), 2, new double[] {1.0, 0.5, 0.8, -0.3, 1.2, 0.1},
                 new double[] {0.04, 0, 0, 0.01}, new double[] {0.02, 0.03, 0.05});
-        double[] c = {.0625, .0305, .0485, .0305, .0565, .0381, .0485, .0381, .1077}; // methods.md s.0, printed exactly
+        double[] c = {.0625, .0305, .0485, .0305, .0565, .0381, .0485, .0381, .1077}; // docs/methods.md section 0, printed exactly
         double[] p = {0.5, 0.3, 0.2};
         double[] cp = new double[3];
         for (int i = 0; i < 3; i++) for (int j = 0; j < 3; j++) cp[i] += c[i * 3 + j] * p[j];

@@ -141,7 +141,7 @@ class FitterBehaviourTest {
                 for (int t = 0; t < 200; t++) {
                     c += w[t] * fr[t * k + a] * fr[t * k + b];
                 }
-                // weighted covariance of the factor returns is F = diag(lambda) (design.md section 3)
+                // weighted covariance of the factor returns is F = diag(lambda) (docs/design.md section 3)
                 assertEquals(res.model().factorCov(a, b), c, 1e-11 * res.eigenvalues()[0], a + "," + b);
             }
         }

@@ -125,7 +125,7 @@ final class Fixtures {
     }
 
     /**
-     * Planted model X = F L' + E (methods.md section 2 property): F (T x r), L (K x r), E all
+     * Planted model X = F L' + E (docs/methods.md section 2 property): F (T x r), L (K x r), E all
      * N(0, noise^2); returns {panel values (T x K), loadings L (K x r row-major)}.
      */
     static double[][] planted(int dates, int tickers, int r, double noise, long seed) {

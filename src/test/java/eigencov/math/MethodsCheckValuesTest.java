@@ -9,17 +9,17 @@ import java.util.Random;
 import org.junit.jupiter.api.Test;
 
 /**
- * Check values published in /work/shared/methods.md (computed there with numpy/scipy). They are
- * printed with 6 decimals, hence {@link #SIX_DECIMALS} (absolute). methods.md uses divisor T-1; our
+ * Check values published in docs/methods.md (computed there with numpy/scipy). They are
+ * printed with 6 decimals, hence {@link #SIX_DECIMALS} (absolute). docs/methods.md uses divisor T-1; our
  * equal-weight divisor is T, so its eigenvalues and specific variances scale by (T-1)/T.
  */
 class MethodsCheckValuesTest {
 
-    /** Half a unit in the 6th decimal, the precision methods.md prints (plus rounding slack). */
+    /** Half a unit in the 6th decimal, the precision docs/methods.md prints (plus rounding slack). */
     static final double SIX_DECIMALS = 5.01e-7;
     static final double IDENTITY = 1e-12;
 
-    /** methods.md section 0, Dataset A (T=6, K=4, columns have mean 0). */
+    /** docs/methods.md section 0, Dataset A (T=6, K=4, columns have mean 0). */
     static final double[] DATASET_A = {
         1.0, 0.5, -0.2, 0.3,
         -0.5, -0.4, 0.1, -0.2,
@@ -41,7 +41,7 @@ class MethodsCheckValuesTest {
     void dataset_A_eigenvalues_first_vector_and_specific_variances() {
         double toN = 5.0 / 6.0;
         FitResult r = fitA(2, 0.0);
-        double[] ev = {1.354576, 0.153494, 0.032837, 0.023094}; // methods.md s.1, divisor 5
+        double[] ev = {1.354576, 0.153494, 0.032837, 0.023094}; // docs/methods.md section 1, divisor 5
         for (int j = 0; j < 4; j++) {
             close(ev[j] * toN, r.eigenvalues()[j], "eigenvalue " + j);
         }
@@ -49,7 +49,7 @@ class MethodsCheckValuesTest {
         for (int i = 0; i < 4; i++) {
             close(v1[i], r.model().exposure(i, 0), "v1 " + i);
         }
-        double[] d2 = {0.009977, 0.019465, 0.000571, 0.025918}; // methods.md s.4, k=2
+        double[] d2 = {0.009977, 0.019465, 0.000571, 0.025918}; // docs/methods.md section 4, k=2
         for (int i = 0; i < 4; i++) {
             close(d2[i] * toN, r.model().specificVariance(i), "delta k=2 " + i);
         }
@@ -58,7 +58,7 @@ class MethodsCheckValuesTest {
         for (int i = 0; i < 4; i++) {
             close(d1[i] * toN, r1.model().specificVariance(i), "delta k=1 " + i);
         }
-        // model diagonal equals diag(S) exactly when no floor binds; S (divisor 5) from methods.md s.0
+        // model diagonal equals diag(S) exactly when no floor binds; S (divisor 5) from docs/methods.md section 0
         double[] s = {0.716, 0.376, 0.204, 0.268};
         double[] c = Fixtures.modelCovariance(r.model());
         for (int i = 0; i < 4; i++) {
@@ -79,16 +79,16 @@ class MethodsCheckValuesTest {
 
     @Test
     void dataset_A_beta_of_equal_weights_to_the_first_factor_follows_the_k1_check_value() {
-        // methods.md s.9 (Dataset A, equal weights, k = 1 model): w'C v_1 / lambda_1 = 0.477983. Our beta
+        // docs/methods.md section 9 (Dataset A, equal weights, k = 1 model): w'C v_1 / lambda_1 = 0.477983. Our beta
         // (docs/design.md section 6) scales v_1 to sum 1, p = v_1 / (1'v_1), and divides by the model variance of p:
         // beta = w'C p / (p'C p) = (1'v_1) (w'C v_1) / (v_1'C v_1), with v_1'C v_1 = lambda_1 + v_1'D v_1 for k = 1.
-        // The methods.md values are for divisor T-1; the ratio w'C v_1 / lambda_1 does not depend on the divisor.
+        // The docs/methods.md values are for divisor T-1; the ratio w'C v_1 / lambda_1 does not depend on the divisor.
         FitResult fit = fitA(1, 0.0);
         FactorModel m = fit.model();
         PortfolioRisk p = RiskCalculator.portfolio(m, new int[] {0, 1, 2, 3}, new double[] {.25, .25, .25, .25},
                 null, null, 1.0, FirstFactorBeta.betas(fit, m));
-        double[] v1 = {0.716941, 0.513016, 0.211378, 0.422053}; // methods.md s.0
-        double lambda = 1.354576 * 5 / 6;                        // methods.md s.0 (divisor 5), to our divisor 6
+        double[] v1 = {0.716941, 0.513016, 0.211378, 0.422053}; // docs/methods.md section 0
+        double lambda = 1.354576 * 5 / 6;                        // docs/methods.md section 0 (divisor 5), to our divisor 6
         double sum = 0;
         double vdv = 0;
         for (int i = 0; i < 4; i++) {
@@ -123,7 +123,7 @@ class MethodsCheckValuesTest {
         }
     }
 
-    /** methods.md s.0 toy model M. */
+    /** docs/methods.md section 0 toy model M. */
     static FactorModel toyM() {
         return new FactorModel(List.of("AQ", "BQ", "CQ"), 2, new double[] {1.0, 0.5, 0.8, -0.3, 1.2, 0.1},
                 new double[] {0.04, 0, 0, 0.01}, new double[] {0.02, 0.03, 0.05});
@@ -171,7 +171,7 @@ class MethodsCheckValuesTest {
         double[] ev = {8, 4, 1, .9, .8, .7, .6, .5};
         FactorCountReport r = FactorCount.choose(new FactorRule.EigenvalueRatio(5), ev, 8, 100, 16.5);
         assertEquals(2, r.k());
-        double[] er = {2, 4, 1.1111, 1.125, 1.1429}; // methods.md s.2, 4-5 digits
+        double[] er = {2, 4, 1.1111, 1.125, 1.1429}; // docs/methods.md section 2, 4-5 digits
         for (int j = 0; j < 5; j++) {
             assertEquals(er[j], r.values()[j], 5e-5 * er[j], "ER " + (j + 1));
         }
@@ -197,7 +197,7 @@ class MethodsCheckValuesTest {
 
     @Test
     void half_life_weights_effective_observations_and_weighted_moments() {
-        // methods.md s.6: h = 63 -> T_eff(252) = 160.40; lambda = 0.94 (h = 11.2023) -> T_eff = 32.3333
+        // docs/methods.md section 6: h = 63 -> T_eff(252) = 160.40; lambda = 0.94 (h = 11.2023) -> T_eff = 32.3333
         assertEquals(160.40, FactorFitter.effectiveObservations(FactorFitter.weights(252, 63.0)), 0.005);
         assertEquals(32.3333, FactorFitter.effectiveObservations(FactorFitter.weights(252, 11.2023)), 0.0005);
         // toy r = (1, -1, 2, 0), lambda = 0.5 (h = 1): w = (1, 2, 4, 8)/15, mu = 0.466667, biased var 1.048889
@@ -211,7 +211,7 @@ class MethodsCheckValuesTest {
 
     @Test
     void em_completes_a_hidden_cell_of_a_rank_one_matrix() {
-        // methods.md s.7: X = u v', u = (1,2,3,4), v = (1,-1,2); hide (4,3) (true 8) -> 8.000000
+        // docs/methods.md section 7: X = u v', u = (1,2,3,4), v = (1,-1,2); hide (4,3) (true 8) -> 8.000000
         double[] x = {1, -1, 2, 2, -2, 4, 3, -3, 6, 4, -4, Double.NaN};
         FactorFitter f = new FactorFitter(null, 1e-14, 20000);
         FitResult r = f.fit(Fixtures.panel(4, 3, x), FitOptions.of(new FactorRule.Fixed(1), 0.75), null);
@@ -223,7 +223,7 @@ class MethodsCheckValuesTest {
 
     @Test
     void randomized_subspace_iteration_reproduces_the_top_of_an_exactly_rank_5_matrix() {
-        // methods.md s.1: rank-5 300 x 2000, p = 10, q = 2 -> top-5 singular values to < 1e-10 relative
+        // docs/methods.md section 1: rank-5 300 x 2000, p = 10, q = 2 -> top-5 singular values to < 1e-10 relative
         int t = 300;
         int k = 2000;
         double[][] pl = Fixtures.planted(t, k, 5, 0.0, 5);
@@ -241,7 +241,7 @@ class MethodsCheckValuesTest {
 
     @Test
     void alignment_detects_a_sign_flip_and_a_swap() {
-        // methods.md s.8: V_old = [[.5,.5],[.5,.5],[.5,-.5],[.5,-.5]]
+        // docs/methods.md section 8: V_old = [[.5,.5],[.5,.5],[.5,-.5],[.5,-.5]]
         List<String> names = List.of("AQ", "BQ", "CQ", "DQ");
         FactorModel old = new FactorModel(names, 2, new double[] {.5, .5, .5, .5, .5, -.5, .5, -.5},
                 new double[] {2, 0, 0, 1}, new double[4]);

@@ -6,7 +6,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import java.util.Random;
 import org.junit.jupiter.api.Test;
 
-/** EM-PCA imputation (methods.md section 7) on a planted panel with gaps. */
+/** EM-PCA imputation (docs/methods.md section 7) on a planted panel with gaps. */
 class MissingDataTest {
 
     static final int T = 250;
@@ -65,7 +65,7 @@ class MissingDataTest {
             double b = complete.eigenvalues()[j];
             assertTrue(Math.abs(a - b) < 0.05 * b, "eigenvalue " + j + ": " + a + " vs " + b);
         }
-        // and EM beats filling the gaps with zeros, which design.md forbids because it biases variance down
+        // and EM beats filling the gaps with zeros, which docs/design.md section 3 forbids because it biases variance down
         double[] zeros = gappy.clone();
         for (int x = 0; x < zeros.length; x++) {
             if (Double.isNaN(zeros[x])) {

@@ -10,12 +10,12 @@ import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertNull;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-/** The optional rotation onto the previous fit's factors (methods.md section 8; Schönemann 1966). */
+/** The optional rotation onto the previous fit's factors (docs/methods.md section 8; Schönemann 1966). */
 class ProcrustesAlignmentTest {
 
     @Test
     void recovers_a_known_rotation_methods_check_values() {
-        // methods.md section 8, Check: V_old = [[.5,.5],[.5,.5],[.5,-.5],[.5,-.5]], V_new = V_old Rot(30 deg)
+        // docs/methods.md section 8, Check: V_old = [[.5,.5],[.5,.5],[.5,-.5],[.5,-.5]], V_new = V_old Rot(30 deg)
         // => R = Rot(30 deg)' = [[0.866025, 0.5], [-0.5, 0.866025]] and ||V_new R - V_old|| = 0
         double[] vOld = {.5, .5, .5, .5, .5, -.5, .5, -.5};
         double c = Math.cos(Math.toRadians(30));
@@ -25,11 +25,11 @@ class ProcrustesAlignmentTest {
         double[] r = ProcrustesAlignment.rotation(multiplyTransposeA(vNew, vOld, 4, 2), 2);
         assertArrayEquals(new double[] {0.866025, 0.5, -0.5, 0.866025}, r, 1e-6);
         assertArrayEquals(vOld, multiply(vNew, 4, 2, r, 2), 1e-12);
-        // methods.md: a sign flip of column 1 is recovered as diag(-1, 1)
+        // docs/methods.md section 8: a sign flip of column 1 is recovered as diag(-1, 1)
         double[] flipped = vOld.clone();
         for (int i = 0; i < 4; i++) flipped[2 * i] = -flipped[2 * i];
         assertArrayEquals(new double[] {-1, 0, 0, 1}, ProcrustesAlignment.rotation(multiplyTransposeA(flipped, vOld, 4, 2), 2), 1e-12);
-        // methods.md: a column swap is recovered as the permutation (2, 1)
+        // docs/methods.md section 8: a column swap is recovered as the permutation (2, 1)
         double[] swapped = new double[8];
         for (int i = 0; i < 4; i++) {
             swapped[2 * i] = vOld[2 * i + 1];

@@ -13,7 +13,7 @@ import org.junit.jupiter.params.provider.CsvSource;
  * The engine against reference values computed by R 4.2.2 (cov, eigen -> LAPACK dsyevr) and
  * cross-checked with numpy 2.4.6 (eigh -> LAPACK syevd) on open datasets shipped by Debian's R
  * packages (src/test/resources/reference/README.md and each dataset's SOURCE.md). We use the
- * {@code divisor_n} blocks: eigencov's equal-weight covariance divides by T (design.md section 3).
+ * {@code divisor_n} blocks: eigencov's equal-weight covariance divides by T (docs/design.md section 3).
  */
 @org.junit.jupiter.api.TestInstance(org.junit.jupiter.api.TestInstance.Lifecycle.PER_CLASS)
 class ReferenceDatasetsTest {
@@ -153,7 +153,8 @@ class ReferenceDatasetsTest {
 
     @Test
     void synthetic_three_factor_loadings_are_recovered_as_observed_by_R() {
-        // synthetic_3factor/SOURCE.md: largest principal angle E_3 vs true B = 6.568 deg on this panel;
+        // src/test/resources/reference/synthetic_3factor/SOURCE.md:
+        // largest principal angle E_3 vs true B = 6.568 deg on this panel;
         // over 1000 re-simulations the largest angle never exceeded 7.83 deg
         Case c = load("synthetic_3factor", "returns.csv");
         FitResult r = fit(c, 3);

@@ -9,7 +9,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import java.util.Random;
 import org.junit.jupiter.api.Test;
 
-/** Factor-form risk kernels against naive dense formulas (style.md practice 12c). */
+/** Factor-form risk kernels against naive dense formulas (docs/code-style.md practice 12c). */
 class RiskCalculatorTest {
 
     static final double IDENTITY = 1e-12;

@@ -15,7 +15,7 @@ import org.junit.jupiter.params.provider.ValueSource;
 /** Our symmetric eigensolver against EJML's (test-scope oracle, ejml-all 0.46.1) and against invariants. */
 class SymmetricEigenTest {
 
-    /** After a decomposition, agreement relative to the largest |eigenvalue| (style.md practice 12). */
+    /** After a decomposition, agreement relative to the largest |eigenvalue| (docs/code-style.md practice 12). */
     static final double DECOMPOSITION_TOL = 1e-11;
 
     static double[] randomSymmetric(int n, long seed) {

@@ -92,7 +92,7 @@ class FitServiceTest {
         assertEquals(served.model().diagonalFactorCovariance(), stored.model().diagonalFactorCovariance());
     }
 
-    /** C_ii = sum_j B_ij^2 F_jj + d_i (design.md section 3). */
+    /** C_ii = sum_j B_ij^2 F_jj + d_i (docs/design.md section 3). */
     private static double modelVariance(FitResult r, int i) {
         double v = r.model().specificVariance(i);
         for (int j = 0; j < r.model().factors(); j++) v += r.model().exposure(i, j) * r.model().exposure(i, j) * r.model().factorCov(j, j);

@@ -22,7 +22,7 @@ public final class TestFits {
     }
 
     /**
-     * Toy model M of /work/shared/methods.md (section 0, check values in section 9):
+     * Toy model M of docs/methods.md (section 0, check values in section 9):
      * B = [[1.0,0.5],[0.8,-0.3],[1.2,0.1]], F = diag(0.04,0.01), D = diag(0.02,0.03,0.05), tickers AAA, BBB, CCC.
      */
     public static FactorModel toyModelM() {

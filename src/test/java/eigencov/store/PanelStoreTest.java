@@ -17,7 +17,7 @@ import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 /**
- * The window a fit reads (design.md section 3: the last windowDays distinct dates <= asOf, no
+ * The window a fit reads (docs/design.md section 3: the last windowDays distinct dates <= asOf, no
  * lookahead), on a small panel whose every value is known: value = date number + ticker / 100.
  */
 class PanelStoreTest {
